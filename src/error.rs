@@ -1,0 +1,37 @@
+//! The top-level error: each stage's typed error, plus output failures.
+
+use std::path::PathBuf;
+
+use crate::terrain::TerrainError;
+
+/// Anything a sunward command can fail with.
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// Reading or analysing terrain.
+    #[error(transparent)]
+    Terrain(#[from] TerrainError),
+    /// Writing an output file.
+    #[error("{path}: could not write the output: {source}. Fix: check that the folder exists and is writable")]
+    Output {
+        /// The output file.
+        path: PathBuf,
+        /// The cause.
+        source: std::io::Error,
+    },
+    /// An output path would overwrite an input.
+    #[error("{path}: refusing to overwrite an input file with an output. Fix: choose another output path")]
+    OutputIsInput {
+        /// The path.
+        path: PathBuf,
+    },
+    /// A command-line value is out of range or inconsistent.
+    #[error("{0}")]
+    Usage(String),
+}
+
+impl Error {
+    /// Process exit code: 2 for bad input or unusable outputs.
+    pub fn exit_code(&self) -> i32 {
+        2
+    }
+}

@@ -1,0 +1,3 @@
+//! Reports and output files: pure serialisers plus one atomic writer.
+
+pub mod atomic;
