@@ -30,10 +30,13 @@
 
 #![warn(missing_docs)]
 
+pub mod battery;
 pub mod error;
 pub mod progress;
 pub mod report;
+pub mod sun;
 pub mod terrain;
 pub mod units;
+pub mod vehicle;
 
 pub use error::Error;

@@ -2,7 +2,7 @@
 //!
 //! Not a physical model: a documented, reproducible generator for demo data and tests.
 //! The relief is fractional Brownian motion (a sum of octaves of value noise, each
-//! octave half the wavelength and `persistence` times the amplitude of the last; Musgrave
+//! octave half the wavelength and 0.4 times the amplitude of the last; Musgrave
 //! in Ebert et al., *Texturing and Modeling: A Procedural Approach*, 3rd ed., 2003,
 //! ch. 16), plus three landforms placed from the same seed: a ridge with a Gaussian
 //! cross-section, a meandering valley, and a steep scarp (a smooth step three cells wide).
@@ -14,6 +14,10 @@
 
 use crate::terrain::error::TerrainError;
 use crate::terrain::raster::{Dem, GeoRef, Grid};
+
+/// Amplitude ratio between successive octaves: below 0.5 so that slopes shrink at
+/// finer scales (0.5 would give every octave the same slopes).
+const PERSISTENCE: f64 = 0.4;
 
 /// Generator settings.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -27,7 +31,7 @@ pub struct SynthParams {
     /// Elevation of the mean surface, metres.
     pub base_m: f64,
     /// Relief scale: the fractal relief's amplitude as a share of the grid's extent
-    /// (default 0.02: 20 m of relief on a 1 km grid, hilly but drivable).
+    /// (default 0.01: about 10 m of relief on a 1 km grid, rolling but drivable).
     pub relief: f64,
 }
 
@@ -38,7 +42,7 @@ impl Default for SynthParams {
             cell_m: 2.0,
             seed: 1,
             base_m: 500.0,
-            relief: 0.02,
+            relief: 0.01,
         }
     }
 }
@@ -117,11 +121,11 @@ impl Landforms {
         let pos = |r: &mut SplitMix64| (0.25 + 0.5 * r.next_f64()) * extent;
         Landforms {
             // (x0, y0, direction, height, half-width)
-            ridge: (pos(rng), pos(rng), ang(rng), 0.06 * extent, 0.08 * extent),
+            ridge: (pos(rng), pos(rng), ang(rng), 0.03 * extent, 0.1 * extent),
             // (x0, y0, direction, depth, half-width)
-            valley: (pos(rng), pos(rng), ang(rng), 0.04 * extent, 0.05 * extent),
+            valley: (pos(rng), pos(rng), ang(rng), 0.02 * extent, 0.06 * extent),
             // (x0, y0, direction, height)
-            scarp: (pos(rng), pos(rng), ang(rng), 0.025 * extent),
+            scarp: (pos(rng), pos(rng), ang(rng), 0.012 * extent),
         }
     }
 
@@ -178,13 +182,15 @@ pub fn synthesize(p: &SynthParams) -> Result<Dem, TerrainError> {
     let forms = Landforms::new(&mut rng, extent);
     let noise_seed = rng.next_u64();
     let wavelength = extent / 4.0;
-    let octaves = ((p.size as f64 / 2.0).log2().floor() as u32).clamp(1, 10);
+    // Finest octave: a wavelength of about 8 cells, so relief stays smooth at the
+    // cell scale a rover drives on.
+    let octaves = ((p.size as f64 / 32.0).log2().floor() as u32 + 1).clamp(1, 10);
     let mut data = Vec::with_capacity(p.size * p.size);
     for r in 0..p.size {
         for c in 0..p.size {
             let x = (c as f64 + 0.5) * p.cell_m;
             let y = extent - (r as f64 + 0.5) * p.cell_m;
-            let n = fbm(noise_seed, x / wavelength, y / wavelength, octaves, 0.5);
+            let n = fbm(noise_seed, x / wavelength, y / wavelength, octaves, PERSISTENCE);
             let z = p.base_m + p.relief * extent * n + forms.height(x, y, extent, p.cell_m);
             data.push(z as f32);
         }

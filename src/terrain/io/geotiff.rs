@@ -437,7 +437,7 @@ fn keys_for(crs: &Crs) -> GeoKeys {
 
 /// Writes `bands` (each `width × height` row-major values, NaN = no-data) as a Float32
 /// GeoTIFF with the georeference `georef`. Band k is sample k of each pixel.
-pub fn write<W: Write>(
+pub fn write<W: Write + ?Sized>(
     out: &mut W,
     georef: &GeoRef,
     width: usize,

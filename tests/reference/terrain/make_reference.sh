@@ -219,7 +219,7 @@ run "$BAD/south_up.tif" gdal_translate -q -of GTiff "$TMP/south_up.vrt" "$BAD/so
         set +e
         out=$(gdalinfo -checksum "$f" 2>&1); rc=$?
         set -e
-        grep -E -A3 '^GeoTransform' <<< "$out" | sed 's/^/  /' || true
+        grep -E -A2 '^GeoTransform' <<< "$out" | sed 's/^/  /' || true
         printf '%s\n' "$out" | grep -E '^(ERROR|Warning)|Size is|Type=|NoData|Checksum=|Origin|Pixel Size' \
             | sed 's/^/  /' | head -14
         echo "  exit code $rc"

@@ -1,0 +1,1 @@
+//! Battery pack, thermal node and load schedules (in progress).

@@ -1,0 +1,106 @@
+//! Command-line definition (clap derive): the single source of the CLI's help text.
+
+mod demo;
+mod progress;
+mod terrain;
+
+use std::path::{Path, PathBuf};
+
+use clap::{Args, Parser, Subcommand};
+
+use sunward::terrain::io::{PngScale, ReadOptions, DEFAULT_MAX_CELLS};
+use sunward::Error;
+
+/// Energy and mission feasibility planner for solar-powered mobile robots.
+///
+/// A planning aid with stated model limits: confirm every plan with field tests and
+/// margins; battery limits come from the cell maker's data sheet; local regulations and
+/// the operator's own safety practice govern.
+#[derive(Debug, Parser)]
+#[command(name = "sunward", version, about, long_about)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Run the bundled demo end to end and write its outputs.
+    Demo(demo::DemoArgs),
+    /// Inspect and analyse elevation rasters.
+    #[command(subcommand)]
+    Terrain(terrain::TerrainCommand),
+}
+
+/// How to read a DEM: shared by every command that takes one.
+#[derive(Debug, Clone, Args)]
+pub struct DemArgs {
+    /// Elevation raster: GeoTIFF (.tif), 16-bit PNG heightmap (.png) or ESRI ASCII grid (.asc).
+    pub dem: PathBuf,
+    /// PNG heightmaps only: cell size in metres.
+    #[arg(long, value_name = "M")]
+    pub cell_m: Option<f64>,
+    /// PNG heightmaps only: metres per raw sample step.
+    #[arg(long, value_name = "M", default_value_t = 1.0)]
+    pub z_scale: f64,
+    /// PNG heightmaps only: elevation of raw value 0, metres.
+    #[arg(long, value_name = "M", default_value_t = 0.0)]
+    pub z_offset: f64,
+    /// PNG heightmaps only: raw sample value that marks no-data.
+    #[arg(long, value_name = "RAW")]
+    pub png_nodata: Option<u16>,
+    /// Refuse rasters with more cells than this (checked before reading the data).
+    #[arg(long, value_name = "CELLS", default_value_t = DEFAULT_MAX_CELLS)]
+    pub max_cells: u64,
+}
+
+impl DemArgs {
+    /// Reader options from the flags.
+    pub fn read_options(&self) -> ReadOptions {
+        ReadOptions {
+            max_cells: self.max_cells,
+            png: self.cell_m.map(|cell_m| PngScale {
+                cell_m,
+                z_scale_m: self.z_scale,
+                z_offset_m: self.z_offset,
+                nodata_raw: self.png_nodata,
+            }),
+        }
+    }
+
+    /// Reads the DEM.
+    pub fn load(&self) -> Result<sunward::terrain::Dem, Error> {
+        Ok(sunward::terrain::io::read_dem(&self.dem, &self.read_options())?)
+    }
+}
+
+/// Refuses an output that would overwrite an input, and checks the folder is writable,
+/// before any long work starts.
+pub fn check_output(out: &Path, inputs: &[&Path]) -> Result<(), Error> {
+    let canon = |p: &Path| std::fs::canonicalize(p).ok();
+    if let Some(o) = canon(out) {
+        if inputs.iter().any(|i| canon(i).as_ref() == Some(&o)) {
+            return Err(Error::OutputIsInput {
+                path: out.to_path_buf(),
+            });
+        }
+    }
+    sunward::report::atomic::check_writable(out)
+}
+
+/// Runs one parsed command line.
+pub fn run(cli: Cli) -> Result<(), Error> {
+    match cli.command {
+        Command::Demo(a) => demo::run(a),
+        Command::Terrain(t) => terrain::run(t),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn clap_definition_is_consistent() {
+        use clap::CommandFactory;
+        super::Cli::command().debug_assert();
+    }
+}

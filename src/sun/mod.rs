@@ -1,0 +1,1 @@
+//! Sun position, irradiance, transposition, terrain shading and PV power (in progress).

@@ -1,0 +1,1 @@
+//! Lumped vehicle model: traction, powertrain, speed, attitude, stability (in progress).
