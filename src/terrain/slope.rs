@@ -11,10 +11,11 @@
 //!
 //! Aspect is the azimuth the slope faces (downhill), clockwise from grid north, in
 //! [0, 2π); flat cells have no aspect (NaN). Edges and no-data: a missing neighbour is
-//! replaced by linear extrapolation through the centre, 2e − (opposite neighbour), or by
-//! e when the opposite is missing too. This keeps planes exact up to the grid edge; it
-//! differs from GDAL's `gdaldem -compute_edges` at edge cells (GDAL's interior values are
-//! the same). A no-data centre gives no-data.
+//! replaced by linear extrapolation along its row or column (see `fill_window`), which
+//! keeps planes exact up to the grid edge and equals GDAL's `gdaldem -compute_edges` on
+//! edge cells away from the corners. GDAL differs at the four corners (it repeats the
+//! centre column) and next to no-data (it copies the centre value, which flattens the
+//! slope); sunward extrapolates there too. A no-data centre gives no-data.
 //!
 //! # Units
 //! Input elevations in metres with cell size in metres; slopes and aspects in radians.
@@ -53,36 +54,35 @@ pub fn horn_gradient(dem: &Dem, cell: CellSize, col: usize, row: usize) -> Optio
     Some((gx, gy))
 }
 
-/// Fills the window with the extrapolation rule of the module doc: first the four
-/// orthogonal neighbours (2e − opposite, or e), then the diagonals (present value,
-/// 2e − opposite diagonal, or the parallelogram z(dc,0) + z(0,dr) − e). Each rule is
-/// exact on a plane.
+/// Fills the window with the extrapolation rule of the module doc. Orthogonal
+/// neighbours: 2e − opposite, or e. A missing diagonal (dc, dr): first along its own
+/// column, 2·z(dc, 0) − z(dc, −dr), else along its own row, 2·z(0, dr) − z(−dc, dr) (the
+/// rule `gdaldem -compute_edges` uses at grid edges), else 2e − opposite diagonal, else
+/// the parallelogram z(dc, 0) + z(0, dr) − e. Every rule is exact on a plane.
 fn fill_window(dem: &Dem, col: usize, row: usize, e: f64, z: &mut [[f64; 3]; 3]) {
     let at = |dc: isize, dr: isize| -> f64 {
         dem.get_checked(col as isize + dc, row as isize + dr)
             .map_or(f64::NAN, |v| v as f64)
     };
-    let extrapolate = |dc: isize, dr: isize| -> f64 {
-        let v = at(dc, dr);
-        if !v.is_nan() {
-            return v;
-        }
-        let opp = at(-dc, -dr);
-        if opp.is_nan() {
-            f64::NAN
-        } else {
-            2.0 * e - opp
-        }
-    };
+    let line = |near: f64, far: f64| 2.0 * near - far;
     z[1][1] = e;
     for (dc, dr) in [(-1isize, 0isize), (1, 0), (0, -1), (0, 1)] {
-        let v = extrapolate(dc, dr);
+        let v = at(dc, dr);
+        let v = if v.is_nan() { line(e, at(-dc, -dr)) } else { v };
         z[(dr + 1) as usize][(dc + 1) as usize] = if v.is_nan() { e } else { v };
     }
     for (dc, dr) in [(-1isize, -1isize), (1, -1), (-1, 1), (1, 1)] {
-        let v = extrapolate(dc, dr);
         let (ic, ir) = ((dc + 1) as usize, (dr + 1) as usize);
-        z[ir][ic] = if v.is_nan() { z[1][ic] + z[ir][1] - e } else { v };
+        let candidates = [
+            at(dc, dr),
+            line(at(dc, 0), at(dc, -dr)),
+            line(at(0, dr), at(-dc, dr)),
+            line(e, at(-dc, -dr)),
+        ];
+        z[ir][ic] = candidates
+            .into_iter()
+            .find(|v| !v.is_nan())
+            .unwrap_or(z[1][ic] + z[ir][1] - e);
     }
 }
 
@@ -152,9 +152,15 @@ mod tests {
             let want_s = (a as f64).hypot(b).atan();
             let want_a = crate::units::wrap_azimuth_rad((-a as f64).atan2(-b));
             for i in 0..w * h {
-                assert!((s.data()[i] as f64 - want_s).abs() < 1e-5, "slope {a} {b} cell {i}");
+                assert!(
+                    (s.data()[i] as f64 - want_s).abs() < 1e-5,
+                    "slope {a} {b} cell {i}"
+                );
                 let da = (asp.data()[i] as f64 - want_a).abs();
-                assert!(da < 1e-5 || (da - std::f64::consts::TAU).abs() < 1e-5, "aspect {i}");
+                assert!(
+                    da < 1e-5 || (da - std::f64::consts::TAU).abs() < 1e-5,
+                    "aspect {i}"
+                );
             }
         }
     }

@@ -9,8 +9,9 @@
 //!
 //! Read: one band of Float32, Float64, Int16, UInt16, Int32 (and 8-bit / UInt32),
 //! strips or tiles, uncompressed, LZW or Deflate, with or without a predictor.
+//! South-up grids (positive row step) are flipped to north-up on reading.
 //! Refused with a clear error: several bands, complex or 64-bit integer samples,
-//! rotated or south-up grids, rasters without georeference, JPEG or ZSTD compression.
+//! rotated grids, rasters without georeference, JPEG or ZSTD compression.
 //!
 //! Write: little-endian classic TIFF, Float32, one or more bands interleaved per pixel
 //! (PlanarConfiguration 1), uncompressed strips, the source's GeoKeys kept verbatim,
@@ -44,15 +45,23 @@ pub fn read(path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
 /// Reads from any seekable stream; `path` only names the source in errors.
 pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
     let bad = |e: tiff::TiffError| {
+        let detail = match &e {
+            tiff::TiffError::IoError(io) if io.kind() == std::io::ErrorKind::UnexpectedEof => {
+                "the file ends before the data its header declares (truncated or damaged)"
+                    .to_string()
+            }
+            other => other.to_string(),
+        };
         TerrainError::malformed(
             path,
             FORMAT,
-            e.to_string(),
+            detail,
             "check that the file is complete and is a TIFF (gdalinfo shows it)",
         )
     };
     let mut limits = Limits::default();
-    limits.decoding_buffer_size = usize::try_from(max_cells.saturating_mul(8)).unwrap_or(usize::MAX);
+    limits.decoding_buffer_size =
+        usize::try_from(max_cells.saturating_mul(8)).unwrap_or(usize::MAX);
     limits.intermediate_buffer_size = limits.decoding_buffer_size;
     let mut dec = Decoder::new(r).map_err(bad)?.with_limits(limits);
     let (w, h) = dec.dimensions().map_err(bad)?;
@@ -75,9 +84,9 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
         });
     }
     check_sample_type(&mut dec, path)?;
-    let georef = read_georef(&mut dec, path)?;
+    let (georef, south_up) = read_georef(&mut dec, path, h)?;
     let data = dec.read_image().map_err(bad)?;
-    let values = to_f32(data, georef.nodata, path)?;
+    let mut values = to_f32(data, georef.nodata, path)?;
     if values.len() != cells as usize {
         return Err(TerrainError::malformed(
             path,
@@ -86,10 +95,25 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
             "the file is damaged; re-export it",
         ));
     }
+    if south_up {
+        flip_rows(&mut values, w as usize);
+    }
     Ok(Grid::from_vec(w as usize, h as usize, values, georef))
 }
 
-fn check_sample_type<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Result<(), TerrainError> {
+/// Reverses the row order of a row-major buffer.
+fn flip_rows(values: &mut [f32], width: usize) {
+    let rows = values.len() / width.max(1);
+    for r in 0..rows / 2 {
+        let (top, bottom) = values.split_at_mut((rows - 1 - r) * width);
+        top[r * width..(r + 1) * width].swap_with_slice(&mut bottom[..width]);
+    }
+}
+
+fn check_sample_type<R: Read + Seek>(
+    dec: &mut Decoder<R>,
+    path: &Path,
+) -> Result<(), TerrainError> {
     let color = dec.colortype().map_err(|e| {
         TerrainError::unsupported(
             path,
@@ -137,10 +161,19 @@ fn check_sample_type<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Resul
 }
 
 fn tag_f64s<R: Read + Seek>(dec: &mut Decoder<R>, tag: Tag) -> Option<Vec<f64>> {
-    dec.find_tag(tag).ok().flatten().and_then(|v| v.into_f64_vec().ok())
+    dec.find_tag(tag)
+        .ok()
+        .flatten()
+        .and_then(|v| v.into_f64_vec().ok())
 }
 
-fn read_georef<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Result<GeoRef, TerrainError> {
+/// The georeference, and whether the file's rows run northward (they are then flipped so
+/// that row 0 is the north edge, as everywhere inside sunward).
+fn read_georef<R: Read + Seek>(
+    dec: &mut Decoder<R>,
+    path: &Path,
+    height: u32,
+) -> Result<(GeoRef, bool), TerrainError> {
     let scale = tag_f64s(dec, Tag::ModelPixelScaleTag);
     let tie = tag_f64s(dec, Tag::ModelTiepointTag);
     let transform = tag_f64s(dec, Tag::ModelTransformationTag);
@@ -181,26 +214,26 @@ fn read_georef<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Result<GeoR
             "the pixel size must be finite and positive; fix the georeference tags",
         ));
     }
-    if ph < 0.0 {
-        return Err(TerrainError::unsupported(
-            path,
-            "south-up grid (rows run northward)",
-            "flip it to north-up with gdalwarp",
-        ));
-    }
     let crs = crs_from_keys(keys);
+    let south_up = ph < 0.0;
+    let ph = ph.abs();
     if raster_type(&crs) == Some(2) {
         ox -= 0.5 * pw;
-        oy += 0.5 * ph;
+        oy += if south_up { -0.5 * ph } else { 0.5 * ph };
     }
-    Ok(GeoRef {
+    if south_up {
+        // oy is the south edge of row 0; after flipping, row 0 is the north edge.
+        oy += height as f64 * ph;
+    }
+    let georef = GeoRef {
         origin_x: ox,
         origin_y: oy,
         pixel_width: pw,
         pixel_height: ph,
         crs,
         nodata,
-    })
+    };
+    Ok((georef, south_up))
 }
 
 fn parse_nodata(v: Value, path: &Path) -> Result<f64, TerrainError> {
@@ -319,7 +352,11 @@ fn crs_from_keys(keys: Option<GeoKeys>) -> Crs {
     }
 }
 
-fn to_f32(data: DecodingResult, nodata: Option<f64>, path: &Path) -> Result<Vec<f32>, TerrainError> {
+fn to_f32(
+    data: DecodingResult,
+    nodata: Option<f64>,
+    path: &Path,
+) -> Result<Vec<f32>, TerrainError> {
     let nd = nodata.unwrap_or(f64::NAN);
     let conv = |v: f64| -> f32 {
         if !v.is_finite() || v == nd {
@@ -556,7 +593,9 @@ mod tests {
         g.origin_y = 7_000_000.0;
         g.crs.epsg = Some(32633);
         g.crs.kind = CrsKind::Projected;
-        let data = (0..12).map(|i| if i == 5 { f32::NAN } else { i as f32 * 1.5 }).collect();
+        let data = (0..12)
+            .map(|i| if i == 5 { f32::NAN } else { i as f32 * 1.5 })
+            .collect();
         Grid::from_vec(4, 3, data, g)
     }
 
@@ -584,7 +623,14 @@ mod tests {
         let mut bytes = Vec::new();
         write(&mut bytes, &grid.georef, 4, 3, &[grid.data()]).unwrap();
         let err = read_from(Cursor::new(bytes), Path::new("big.tif"), 11).unwrap_err();
-        assert!(matches!(err, TerrainError::TooLarge { cells: 12, limit: 11, .. }));
+        assert!(matches!(
+            err,
+            TerrainError::TooLarge {
+                cells: 12,
+                limit: 11,
+                ..
+            }
+        ));
     }
 
     #[test]

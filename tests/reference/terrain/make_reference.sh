@@ -3,7 +3,7 @@
 #
 # What it makes (all into this folder unless noted; see README.md here):
 #   * synthetic input DEMs (ESRI ASCII grids) from seeded numpy  (gen_inputs.py)
-#   * gdaldem slope / aspect / hillshade of each DEM, as ESRI ASCII grids
+#   * gdaldem slope / aspect / hillshade / roughness of each DEM, as ESRI ASCII grids
 #   * Olinda DEM checks: gdalinfo -json -stats, gdaldem slope, gdallocationinfo samples
 #   * GeoTIFFs written by tifffile (tf_*.tif, make_tiffs.py) and by gdal_translate
 #     (gd_*.tif), each with <name>.expect.json read back by GDAL (make_expect.py)
@@ -114,6 +114,8 @@ for dem in rand40x30 rand25x25_nodata plateau20x20 rect30x20; do
     to_asc "$TMP/$dem.slope.tif" "$dem.slope.asc"
     run "($dem.slope_edges.tif)" gdaldem slope -q -alg Horn -compute_edges "$dem.asc" "$TMP/$dem.slope_edges.tif"
     to_asc "$TMP/$dem.slope_edges.tif" "$dem.slope_edges.asc"
+    run "($dem.roughness.tif)" gdaldem roughness -q "$dem.asc" "$TMP/$dem.roughness.tif"
+    to_asc "$TMP/$dem.roughness.tif" "$dem.roughness.asc"
     [[ $dem == rect30x20 ]] && continue       # non-square cells: slope only
     run "($dem.aspect.tif)" gdaldem aspect -q -alg Horn "$dem.asc" "$TMP/$dem.aspect.tif"
     to_asc "$TMP/$dem.aspect.tif" "$dem.aspect.asc"
