@@ -49,7 +49,7 @@ fn compare(name: &str, ours: &Grid<f32>, gdal: &Dem, tol: f64, circular: bool) -
             if circular {
                 d = d.min(360.0 - d);
             }
-            if !(d <= tol) {
+            if d.is_nan() || d > tol {
                 out.push(format!(
                     "{name} ({col},{row}): ours {got} gdal {want} (tol {tol})"
                 ));

@@ -149,8 +149,8 @@ mod tests {
             let dem = Grid::from_vec(w, h, data, g);
             let s = slope_map(&dem);
             let asp = aspect_map(&dem);
-            let want_s = (a as f64).hypot(b).atan();
-            let want_a = crate::units::wrap_azimuth_rad((-a as f64).atan2(-b));
+            let want_s = a.hypot(b).atan();
+            let want_a = crate::units::wrap_azimuth_rad((-a).atan2(-b));
             for i in 0..w * h {
                 assert!(
                     (s.data()[i] as f64 - want_s).abs() < 1e-5,
