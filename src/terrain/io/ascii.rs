@@ -241,6 +241,16 @@ mod tests {
     }
 
     #[test]
+    fn zero_and_absurd_dimensions_are_refused_before_allocating() {
+        let zero = "ncols 0\nnrows 2\nxllcorner 0\nyllcorner 0\ncellsize 1\n";
+        let e = parse(zero, None, Path::new("z.asc"), 100).unwrap_err().to_string();
+        assert!(e.contains("ncols = 0 must be a whole number"), "{e}");
+        let huge = "ncols 100000\nnrows 100000\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n";
+        let e = parse(huge, None, Path::new("h.asc"), 1 << 28).unwrap_err();
+        assert!(matches!(e, TerrainError::TooLarge { cells: 10_000_000_000, .. }), "{e}");
+    }
+
+    #[test]
     fn wkt_kind_and_top_level_epsg() {
         let wkt = r#"PROJCS["WGS 84 / UTM zone 33N",GEOGCS["WGS 84",AUTHORITY["EPSG","4326"]],UNIT["metre",1],AUTHORITY["EPSG","32633"]]"#;
         let c = crs_from_wkt(wkt);
