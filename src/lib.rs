@@ -32,6 +32,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod plan;
 pub mod progress;
 pub mod report;
 pub mod sun;

@@ -243,11 +243,22 @@ mod tests {
     #[test]
     fn zero_and_absurd_dimensions_are_refused_before_allocating() {
         let zero = "ncols 0\nnrows 2\nxllcorner 0\nyllcorner 0\ncellsize 1\n";
-        let e = parse(zero, None, Path::new("z.asc"), 100).unwrap_err().to_string();
+        let e = parse(zero, None, Path::new("z.asc"), 100)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("ncols = 0 must be a whole number"), "{e}");
         let huge = "ncols 100000\nnrows 100000\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n";
         let e = parse(huge, None, Path::new("h.asc"), 1 << 28).unwrap_err();
-        assert!(matches!(e, TerrainError::TooLarge { cells: 10_000_000_000, .. }), "{e}");
+        assert!(
+            matches!(
+                e,
+                TerrainError::TooLarge {
+                    cells: 10_000_000_000,
+                    ..
+                }
+            ),
+            "{e}"
+        );
     }
 
     #[test]

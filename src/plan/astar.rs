@@ -1,0 +1,481 @@
+//! Exact A* over the implicit terrain grid, with Johnson's potential for negative steps.
+//!
+//! # Graph
+//! Nodes are cells; a step goes to one of 8 neighbours (or 16 with the knight moves
+//! (±1, ±2), (±2, ±1), for smoother headings). A diagonal or knight step needs the cells
+//! it brushes past (its flanking cells) free of no-data, keep-out and roughness blocks, so
+//! a route never cuts the corner of a forbidden area. Per-cell state is flat arrays: the
+//! best cost so far (f64) and one byte holding the parent direction and the closed flag.
+//! Nothing is hashed and nothing is allocated per cell.
+//!
+//! # Exactness
+//! With regenerative braking a step's cost can be negative. Following Johnson (D. B.
+//! Johnson, "Efficient algorithms for shortest paths in sparse networks", JACM 24(1),
+//! 1977), every step cost c is replaced by the reduced cost c' = c − K·dz with the
+//! potential φ(v) = K·z(v): c' ≥ 0 by the model contract (see [`super::cost`]), and a
+//! path's reduced cost differs from its true cost by K·(z_goal − z_start), the same for
+//! every path, so the optimal path is unchanged. The search runs on c'.
+//!
+//! The heuristic is h'(v) = max(0, B(v → goal) − K·(z_goal − z_v)), where B is the
+//! objective's lower bound of the cost of the straight displacement. Admissible: any path
+//! from v to the goal costs at least B of its displacement (contract 1 summed over its
+//! steps with contract 2), and its reduced cost is its cost minus K·Δz. Consistent: for a
+//! step u → v, B(u → goal) ≤ B(u → v) + B(v → goal) ≤ c(u, v) + B(v → goal) (contract 2
+//! then 1); subtracting the potentials gives h'(u) ≤ c'(u, v) + h'(v); the max with 0
+//! keeps consistency because 0 is consistent with non-negative c'. So the first time a
+//! cell is taken from the queue its cost is final, keys never decrease, and a monotone
+//! radix heap ([`super::queue`]) is enough.
+//!
+//! # Constraints
+//! Pitch is the step's own rise over its length; roll comes from the elevations of the
+//! cells beside the step (right minus left over their separation), through
+//! [`super::tilt`]. Uphill pitch, downhill pitch and roll have separate limits. Cells can
+//! be blocked beforehand (no-data, keep-out, roughness): see [`CellFlags`].
+//!
+//! # Units
+//! Costs in the objective's units; lengths in metres; angles in radians.
+
+use crate::plan::cost::{Blocked, Objective, Step, StepModel};
+use crate::plan::queue::RadixHeap;
+use crate::plan::tilt::pitch_roll_from_slopes;
+use crate::terrain::Dem;
+
+/// How many neighbours a cell has.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Connectivity {
+    /// The 8 neighbours (default).
+    #[default]
+    Eight,
+    /// 8 neighbours plus the 8 knight moves.
+    Sixteen,
+}
+
+/// Step offsets (dc, dr); the index is the parent code stored per cell.
+pub const DIRECTIONS: [(i32, i32); 16] = [
+    (1, 0),
+    (1, 1),
+    (0, 1),
+    (-1, 1),
+    (-1, 0),
+    (-1, -1),
+    (0, -1),
+    (1, -1),
+    (2, 1),
+    (1, 2),
+    (-1, 2),
+    (-2, 1),
+    (-2, -1),
+    (-1, -2),
+    (1, -2),
+    (2, -1),
+];
+
+impl Connectivity {
+    /// Number of directions used.
+    pub fn count(self) -> usize {
+        match self {
+            Connectivity::Eight => 8,
+            Connectivity::Sixteen => 16,
+        }
+    }
+}
+
+/// Tilt limits of the vehicle, radians (each in (0, π/2)).
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct TiltLimits {
+    /// Steepest climb.
+    pub max_pitch_up_rad: f64,
+    /// Steepest descent.
+    pub max_pitch_down_rad: f64,
+    /// Largest roll either way.
+    pub max_roll_rad: f64,
+}
+
+impl Default for TiltLimits {
+    /// 20° each way: a common rating for small wheeled field robots (common practice;
+    /// the vehicle's own rating governs).
+    fn default() -> Self {
+        let a = 20f64.to_radians();
+        TiltLimits {
+            max_pitch_up_rad: a,
+            max_pitch_down_rad: a,
+            max_roll_rad: a,
+        }
+    }
+}
+
+/// Static per-cell blocks, prepared once and shared by every search on a grid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CellFlags {
+    flags: Vec<u8>,
+}
+
+const FREE: u8 = 0;
+
+impl CellFlags {
+    /// Marks no-data cells of the DEM.
+    pub fn from_dem(dem: &Dem) -> CellFlags {
+        CellFlags {
+            flags: dem
+                .data()
+                .iter()
+                .map(|z| {
+                    if z.is_nan() {
+                        Blocked::NoData as u8 + 1
+                    } else {
+                        FREE
+                    }
+                })
+                .collect(),
+        }
+    }
+
+    /// Blocks a cell for a reason (the first reason set wins).
+    pub fn block(&mut self, cell: usize, why: Blocked) {
+        if self.flags[cell] == FREE {
+            self.flags[cell] = why as u8 + 1;
+        }
+    }
+
+    /// Why a cell is blocked, if it is.
+    #[inline]
+    pub fn blocked(&self, cell: usize) -> Option<Blocked> {
+        match self.flags[cell] {
+            FREE => None,
+            v => Some(Blocked::ALL[(v - 1) as usize]),
+        }
+    }
+}
+
+/// Everything a search needs besides start and goal.
+pub struct Planner<'a, M: StepModel + ?Sized> {
+    /// Elevations (NaN = no-data).
+    pub dem: &'a Dem,
+    /// Static blocks.
+    pub flags: &'a CellFlags,
+    /// The vehicle.
+    pub model: &'a M,
+    /// Tilt limits.
+    pub limits: TiltLimits,
+    /// Neighbourhood.
+    pub connectivity: Connectivity,
+    /// What to minimise.
+    pub objective: Objective,
+}
+
+/// Reusable search arrays (allocate once per grid, reuse for every leg).
+#[derive(Debug, Default)]
+pub struct Workspace {
+    g: Vec<f64>,
+    state: Vec<u8>,
+    heap: RadixHeap,
+}
+
+const CLOSED: u8 = 0x80;
+const NO_PARENT: u8 = 0x1f;
+
+/// A found path.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GridPath {
+    /// Cells from start to goal (row-major indices).
+    pub cells: Vec<usize>,
+    /// Total cost in the objective's units (true cost, not reduced).
+    pub cost: f64,
+    /// Cells taken from the queue.
+    pub expanded: u64,
+}
+
+/// Why no path exists.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Unreachable {
+    /// Edges out of the reachable region rejected for each reason (most first; the grid
+    /// edge only when it is the sole reason).
+    pub closed_by: Vec<(Blocked, u64)>,
+    /// The reachable cell nearest the goal, and its horizontal distance to it, metres.
+    pub nearest: (usize, f64),
+    /// Cells the search reached.
+    pub reached: u64,
+}
+
+impl<M: StepModel + ?Sized> Planner<'_, M> {
+    fn cell_xy(&self, cell: usize) -> (f64, f64) {
+        let c = self.dem.cell_size();
+        let w = self.dem.width();
+        ((cell % w) as f64 * c.dx_m, -((cell / w) as f64) * c.dy_m)
+    }
+
+    /// Horizontal distance between two cells, metres.
+    pub fn distance_m(&self, a: usize, b: usize) -> f64 {
+        let (xa, ya) = self.cell_xy(a);
+        let (xb, yb) = self.cell_xy(b);
+        (xa - xb).hypot(ya - yb)
+    }
+
+    fn z(&self, cell: usize) -> f64 {
+        self.dem.data()[cell] as f64
+    }
+
+    /// The step from `from` in direction `dir`, checked against the grid, the cell
+    /// blocks and the tilt limits (not yet against the vehicle).
+    pub fn geometry(&self, from: usize, dir: usize) -> Result<Step, Blocked> {
+        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
+        let (c0, r0) = ((from as i64) % w, (from as i64) / w);
+        let (dc, dr) = DIRECTIONS[dir];
+        let (c1, r1) = (c0 + dc as i64, r0 + dr as i64);
+        if c1 < 0 || r1 < 0 || c1 >= w || r1 >= h {
+            return Err(Blocked::GridEdge);
+        }
+        let to = (r1 * w + c1) as usize;
+        if let Some(b) = self.flags.blocked(to) {
+            return Err(b);
+        }
+        let flanks = flank_cells(dc, dr);
+        let idx = |(fc, fr): (i32, i32)| -> Option<usize> {
+            let (c, r) = (c0 + fc as i64, r0 + fr as i64);
+            (c >= 0 && r >= 0 && c < w && r < h).then(|| (r * w + c) as usize)
+        };
+        if dc.abs() + dr.abs() > 1 {
+            for f in flanks.iter().flatten() {
+                if let Some(b) = idx(*f).and_then(|i| self.flags.blocked(i)) {
+                    return Err(b);
+                }
+            }
+        }
+        let cs = self.dem.cell_size();
+        let (ex, ny) = (dc as f64 * cs.dx_m, -(dr as f64) * cs.dy_m);
+        let d = ex.hypot(ny);
+        let dz = self.z(to) - self.z(from);
+        let s = dz / d;
+        let (pitch, _) = pitch_roll_from_slopes(s, 0.0);
+        if pitch > self.limits.max_pitch_up_rad {
+            return Err(Blocked::PitchUp);
+        }
+        if -pitch > self.limits.max_pitch_down_rad {
+            return Err(Blocked::PitchDown);
+        }
+        let t = self.cross_slope(&flanks, &idx, (ex / d, ny / d));
+        let (_, roll) = pitch_roll_from_slopes(s, t);
+        if roll.abs() > self.limits.max_roll_rad {
+            return Err(Blocked::Roll);
+        }
+        Ok(Step {
+            d_m: d,
+            dz_m: dz,
+            heading_rad: crate::units::wrap_azimuth_rad(ex.atan2(ny)),
+            pitch_rad: pitch,
+            roll_rad: roll,
+            from,
+            to,
+        })
+    }
+
+    /// Cross slope t = (z_right − z_left) / separation across the heading, averaged over
+    /// the flank pairs with data (0 when none has data).
+    fn cross_slope(
+        &self,
+        flanks: &[[(i32, i32); 2]; 2],
+        idx: &impl Fn((i32, i32)) -> Option<usize>,
+        (hx, hy): (f64, f64),
+    ) -> f64 {
+        let cs = self.dem.cell_size();
+        let (mut sum, mut n) = (0.0, 0);
+        for pair in flanks {
+            let (Some(l), Some(r)) = (idx(pair[0]), idx(pair[1])) else {
+                continue;
+            };
+            let (zl, zr) = (self.z(l), self.z(r));
+            if zl.is_nan() || zr.is_nan() {
+                continue;
+            }
+            // Separation of right minus left, projected on the right-hand normal (hy, −hx).
+            let sx = (pair[1].0 - pair[0].0) as f64 * cs.dx_m;
+            let sy = -((pair[1].1 - pair[0].1) as f64) * cs.dy_m;
+            let sep = sx * hy - sy * hx;
+            if sep.abs() > 1e-9 {
+                sum += (zr - zl) / sep;
+                n += 1;
+            }
+        }
+        if n == 0 {
+            0.0
+        } else {
+            sum / n as f64
+        }
+    }
+
+    /// Reduced-cost A* from `start` to `goal`. `ws` is reused across calls.
+    pub fn search(
+        &self,
+        start: usize,
+        goal: usize,
+        ws: &mut Workspace,
+    ) -> Result<GridPath, Unreachable> {
+        let n = self.dem.len();
+        ws.g.clear();
+        ws.g.resize(n, f64::INFINITY);
+        ws.state.clear();
+        ws.state.resize(n, NO_PARENT);
+        ws.heap.clear();
+        let k = self.objective.potential_per_m(self.model);
+        let z_goal = self.z(goal);
+        let heuristic = |v: usize| -> f64 {
+            let b = self.objective.lower_bound(
+                self.model,
+                self.distance_m(v, goal),
+                z_goal - self.z(v),
+            );
+            (b - k * (z_goal - self.z(v))).max(0.0)
+        };
+        ws.g[start] = 0.0;
+        ws.heap.push(heuristic(start), start as u32);
+        let dirs = self.connectivity.count();
+        let mut expanded = 0u64;
+        while let Some((_, u32v)) = ws.heap.pop() {
+            let u = u32v as usize;
+            if ws.state[u] & CLOSED != 0 {
+                continue;
+            }
+            ws.state[u] |= CLOSED;
+            expanded += 1;
+            if u == goal {
+                return Ok(self.trace(ws, start, goal, k, expanded));
+            }
+            let gu = ws.g[u];
+            for dir in 0..dirs {
+                let Ok(step) = self.geometry(u, dir) else {
+                    continue;
+                };
+                let v = step.to;
+                if ws.state[v] & CLOSED != 0 {
+                    continue;
+                }
+                let Ok(e) = self.model.step(&step) else {
+                    continue;
+                };
+                let len = step.d_m.hypot(step.dz_m);
+                let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
+                let gv = gu + reduced;
+                if gv < ws.g[v] {
+                    ws.g[v] = gv;
+                    ws.state[v] = dir as u8;
+                    ws.heap.push(gv + heuristic(v), v as u32);
+                }
+            }
+        }
+        Err(self.explain(ws, goal))
+    }
+
+    fn trace(&self, ws: &Workspace, start: usize, goal: usize, k: f64, expanded: u64) -> GridPath {
+        let w = self.dem.width() as i64;
+        let mut cells = vec![goal];
+        let mut v = goal;
+        while v != start {
+            let (dc, dr) = DIRECTIONS[(ws.state[v] & 0x1f) as usize];
+            v = (v as i64 - dr as i64 * w - dc as i64) as usize;
+            cells.push(v);
+        }
+        cells.reverse();
+        GridPath {
+            cells,
+            cost: ws.g[goal] + k * (self.z(goal) - self.z(start)),
+            expanded,
+        }
+    }
+
+    /// Tallies why the edges leaving the reached region are closed, and finds the reached
+    /// cell nearest the goal.
+    fn explain(&self, ws: &Workspace, goal: usize) -> Unreachable {
+        let mut counts = [0u64; 8];
+        let mut nearest = (usize::MAX, f64::INFINITY);
+        let mut reached = 0;
+        for u in (0..self.dem.len()).filter(|&u| ws.state[u] & CLOSED != 0) {
+            reached += 1;
+            let d = self.distance_m(u, goal);
+            if d < nearest.1 {
+                nearest = (u, d);
+            }
+            for dir in 0..self.connectivity.count() {
+                let why = match self.geometry(u, dir) {
+                    Err(b) => b,
+                    Ok(step) if ws.state[step.to] & CLOSED == 0 => match self.model.step(&step) {
+                        Err(b) => b,
+                        Ok(_) => continue,
+                    },
+                    Ok(_) => continue,
+                };
+                counts[why as usize] += 1;
+            }
+        }
+        let mut closed_by: Vec<(Blocked, u64)> = Blocked::ALL
+            .iter()
+            .map(|&b| (b, counts[b as usize]))
+            .filter(|(_, c)| *c > 0)
+            .collect();
+        // The grid edge bounds every region; name it only when nothing else closes the way.
+        if closed_by.iter().any(|(b, _)| *b != Blocked::GridEdge) {
+            closed_by.retain(|(b, _)| *b != Blocked::GridEdge);
+        }
+        closed_by.sort_by_key(|e| std::cmp::Reverse(e.1));
+        Unreachable {
+            closed_by,
+            nearest,
+            reached,
+        }
+    }
+}
+
+/// The pairs of cells beside a step (left, right of the heading), relative to its start.
+/// Orthogonal steps use the pair at each end; diagonal steps the two corner cells;
+/// knight steps the two cells they pass between.
+fn flank_cells(dc: i32, dr: i32) -> [[(i32, i32); 2]; 2] {
+    // Right of heading (dc, dr) in (col, row) space, rows growing south: rotate by +90°
+    // on the map, which is (−dr, dc) in (col, row).
+    let right = |c: i32, r: i32| (-r.signum(), c.signum());
+    // > 0 when p lies to the right of the heading (rows grow south).
+    let cross = |p: (i32, i32)| dc * p.1 - dr * p.0;
+    match (dc.abs(), dr.abs()) {
+        (1, 0) | (0, 1) => {
+            let (rc, rr) = right(dc, dr);
+            [
+                [(-rc, -rr), (rc, rr)],
+                [(dc - rc, dr - rr), (dc + rc, dr + rr)],
+            ]
+        }
+        (1, 1) => {
+            // The corner cells (dc, 0) and (0, dr).
+            let (a, b) = ((dc, 0), (0, dr));
+            let (l, r) = if cross(a) > 0 { (b, a) } else { (a, b) };
+            [[l, r], [l, r]]
+        }
+        _ => {
+            // Knight move: it passes between the two cells beside its midpoint.
+            let (a, b) = if dc.abs() == 2 {
+                ((dc / 2, 0), (dc / 2, dr))
+            } else {
+                ((0, dr / 2), (dc, dr / 2))
+            };
+            let (l, r) = if cross(a) > 0 { (b, a) } else { (a, b) };
+            [[l, r], [l, r]]
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn flanks_lie_left_and_right_of_the_heading() {
+        // Heading east (1, 0): right is south (row + 1).
+        let f = flank_cells(1, 0);
+        assert_eq!(f[0], [(0, -1), (0, 1)]);
+        assert_eq!(f[1], [(1, -1), (1, 1)]);
+        // Heading south-east (1, 1): right is (0, 1) (south-west side), left (1, 0).
+        assert_eq!(flank_cells(1, 1)[0], [(1, 0), (0, 1)]);
+        // Knight (2, 1): passes between (1, 0) on the left and (1, 1) on the right.
+        assert_eq!(flank_cells(2, 1)[0], [(1, 0), (1, 1)]);
+        // Knight (1, -2): between (0, -1) and (1, -1); heading north-north-east, right = east.
+        assert_eq!(flank_cells(1, -2)[0], [(0, -1), (1, -1)]);
+    }
+}

@@ -1,0 +1,180 @@
+//! What the planner asks of a vehicle: the energy and time of one step, lower bounds
+//! for the heuristic, and the regeneration bound for the potential. The planner knows no
+//! rover; `vehicle` implements [`StepModel`].
+//!
+//! # The contract (what keeps the search exact)
+//! For every step the model accepts, with horizontal length d, rise dz:
+//! 1. `energy_j ≥ energy_lower_bound_j(d, dz)` and `time_s ≥ time_lower_bound_s(d, dz)`;
+//! 2. both bounds are subadditive in the displacement: bound(a + b) ≤ bound(a) + bound(b)
+//!    (they are functions of the horizontal distance and the rise of the straight
+//!    displacement, non-decreasing in distance);
+//! 3. `energy_j ≥ regen_bound_j_per_m() · dz` (a step cannot return more than that many
+//!    joules per metre of descent, nor cost less per metre of climb), and
+//!    `energy_lower_bound_j(d, dz) ≥ regen_bound_j_per_m() · dz`.
+//!
+//! For the wheel-work model W = m g (Crr·d + dz), E = max(W/η, ρ·W) + P_hotel·t, all three
+//! hold with E_lb = max(W/η, ρ·W) + P_hotel·d/v_max and k = ρ m g: the map
+//! W ↦ max(W/η, ρW) is convex, non-decreasing and positively homogeneous, hence
+//! subadditive, and a path's wheel work sums to m g (Crr·L + Δz) with L ≥ d.
+//! Tests in this crate check the contract on random steps for every model.
+//!
+//! # Units
+//! Lengths in metres, energy in joules, time in seconds, angles in radians.
+
+/// Geometry of one step between cell centres.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Step {
+    /// Horizontal length, metres (> 0).
+    pub d_m: f64,
+    /// Rise (negative when descending), metres.
+    pub dz_m: f64,
+    /// Heading, radians clockwise from north.
+    pub heading_rad: f64,
+    /// Body pitch, radians (+ nose up), from the step's own rise.
+    pub pitch_rad: f64,
+    /// Body roll, radians (+ right side up), from the terrain beside the step.
+    pub roll_rad: f64,
+    /// Row-major index of the cell the step starts in.
+    pub from: usize,
+    /// Row-major index of the cell the step ends in.
+    pub to: usize,
+}
+
+/// Energy and time of a step the vehicle can drive.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StepEnergy {
+    /// Electrical energy drawn from the battery, joules (negative when regenerating).
+    pub energy_j: f64,
+    /// Driving time, seconds (> 0).
+    pub time_s: f64,
+}
+
+/// Why a step (or a cell) cannot be driven.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Blocked {
+    /// Climbing steeper than the uphill pitch limit.
+    PitchUp,
+    /// Descending steeper than the downhill pitch limit.
+    PitchDown,
+    /// Cross slope beyond the roll limit.
+    Roll,
+    /// Cell rougher than the roughness limit.
+    Roughness,
+    /// Cell inside a keep-out area.
+    KeepOut,
+    /// Cell without elevation data.
+    NoData,
+    /// The soil cannot give the thrust the step needs.
+    Traction,
+    /// Off the edge of the grid.
+    GridEdge,
+}
+
+impl Blocked {
+    /// A phrase for messages.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Blocked::PitchUp => "uphill pitch limit",
+            Blocked::PitchDown => "downhill pitch limit",
+            Blocked::Roll => "roll limit",
+            Blocked::Roughness => "roughness limit",
+            Blocked::KeepOut => "keep-out area",
+            Blocked::NoData => "no-data cells",
+            Blocked::Traction => "traction limit",
+            Blocked::GridEdge => "edge of the grid",
+        }
+    }
+
+    /// All reasons, in report order.
+    pub const ALL: [Blocked; 8] = [
+        Blocked::PitchUp,
+        Blocked::PitchDown,
+        Blocked::Roll,
+        Blocked::Roughness,
+        Blocked::KeepOut,
+        Blocked::NoData,
+        Blocked::Traction,
+        Blocked::GridEdge,
+    ];
+}
+
+/// A vehicle as the planner sees it (see the module doc for the contract).
+pub trait StepModel: Sync {
+    /// Energy and time of a step, or why the vehicle cannot drive it.
+    fn step(&self, step: &Step) -> Result<StepEnergy, Blocked>;
+    /// Lower bound of the energy of any drivable path with this displacement, joules.
+    fn energy_lower_bound_j(&self, d_m: f64, dz_m: f64) -> f64;
+    /// Lower bound of the time of any drivable path with this displacement, seconds.
+    fn time_lower_bound_s(&self, d_m: f64, dz_m: f64) -> f64;
+    /// k ≥ 0 with energy ≥ k·dz for every step, joules per metre of rise.
+    fn regen_bound_j_per_m(&self) -> f64;
+}
+
+/// What the route minimises: a weighted sum of slope length (per metre), driving time
+/// (per second) and energy (per joule). The named objectives set one weight to 1.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Objective {
+    /// Weight per metre of slope length.
+    pub per_m: f64,
+    /// Weight per second of driving.
+    pub per_s: f64,
+    /// Weight per joule of energy.
+    pub per_j: f64,
+}
+
+impl Objective {
+    /// Shortest path over the ground (slope length).
+    pub const DISTANCE: Objective = Objective {
+        per_m: 1.0,
+        per_s: 0.0,
+        per_j: 0.0,
+    };
+    /// Fastest path.
+    pub const TIME: Objective = Objective {
+        per_m: 0.0,
+        per_s: 1.0,
+        per_j: 0.0,
+    };
+    /// Least energy (drive plus hotel energy over the driving time).
+    pub const ENERGY: Objective = Objective {
+        per_m: 0.0,
+        per_s: 0.0,
+        per_j: 1.0,
+    };
+
+    /// The name of a pure objective, or "mix".
+    pub fn name(&self) -> &'static str {
+        match (self.per_m > 0.0, self.per_s > 0.0, self.per_j > 0.0) {
+            (true, false, false) => "distance",
+            (false, true, false) => "time",
+            (false, false, true) => "energy",
+            _ => "mix",
+        }
+    }
+
+    /// Cost of a step with this slope length and evaluation.
+    #[inline]
+    pub fn cost(&self, length_m: f64, e: &StepEnergy) -> f64 {
+        self.per_m * length_m + self.per_s * e.time_s + self.per_j * e.energy_j
+    }
+
+    /// Admissible, consistent lower bound of the cost of a displacement.
+    #[inline]
+    pub fn lower_bound<M: StepModel + ?Sized>(&self, m: &M, d_m: f64, dz_m: f64) -> f64 {
+        let mut b = self.per_m * d_m.hypot(dz_m);
+        if self.per_s > 0.0 {
+            b += self.per_s * m.time_lower_bound_s(d_m, dz_m);
+        }
+        if self.per_j > 0.0 {
+            b += self.per_j * m.energy_lower_bound_j(d_m, dz_m);
+        }
+        b
+    }
+
+    /// The potential weight K of the Johnson reweighting c' = c − K·dz (cost per metre of
+    /// rise that every step is guaranteed to carry).
+    pub fn potential_per_m<M: StepModel + ?Sized>(&self, m: &M) -> f64 {
+        self.per_j * m.regen_bound_j_per_m()
+    }
+}

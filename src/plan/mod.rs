@@ -1,0 +1,11 @@
+//! Route planning on the terrain grid: exact, energy- and tilt-aware A*.
+//!
+//! The planner knows no rover: it asks a [`cost::StepModel`] what a step costs.
+
+pub mod astar;
+pub mod cost;
+pub mod queue;
+pub mod tilt;
+
+pub use astar::{CellFlags, Connectivity, GridPath, Planner, TiltLimits, Unreachable, Workspace};
+pub use cost::{Blocked, Objective, Step, StepEnergy, StepModel};
