@@ -198,6 +198,64 @@ pub struct Unreachable {
     pub reached: u64,
 }
 
+/// Per-direction constants of a grid, computed once per search.
+#[derive(Debug, Clone, Copy)]
+struct DirInfo {
+    dc: i64,
+    dr: i64,
+    /// Row-major index offset of the target cell.
+    delta: isize,
+    /// Horizontal length, metres.
+    d_m: f64,
+    heading_rad: f64,
+    /// Flank pairs (left, right) as index offsets, with their separation across the
+    /// heading (metres, right minus left), and the (dc, dr) offsets for edge checks.
+    flanks: [[(i32, i32); 2]; 2],
+    flank_delta: [[isize; 2]; 2],
+    flank_sep: [f64; 2],
+    /// Diagonal and knight steps need their flanking cells free.
+    needs_free_flanks: bool,
+}
+
+fn dir_table(dem: &Dem) -> [DirInfo; 16] {
+    let cs = dem.cell_size();
+    let w = dem.width() as isize;
+    std::array::from_fn(|dir| {
+        let (dc, dr) = DIRECTIONS[dir];
+        let (ex, ny) = (dc as f64 * cs.dx_m, -(dr as f64) * cs.dy_m);
+        let d = ex.hypot(ny);
+        let (hx, hy) = (ex / d, ny / d);
+        let flanks = flank_cells(dc, dr);
+        let flank_delta = flanks.map(|pair| pair.map(|(c, r)| r as isize * w + c as isize));
+        let flank_sep = flanks.map(|pair| {
+            let sx = (pair[1].0 - pair[0].0) as f64 * cs.dx_m;
+            let sy = -((pair[1].1 - pair[0].1) as f64) * cs.dy_m;
+            sx * hy - sy * hx
+        });
+        DirInfo {
+            dc: dc as i64,
+            dr: dr as i64,
+            delta: dr as isize * w + dc as isize,
+            d_m: d,
+            heading_rad: crate::units::wrap_azimuth_rad(ex.atan2(ny)),
+            flanks,
+            flank_delta,
+            flank_sep,
+            needs_free_flanks: dc.abs() + dr.abs() > 1,
+        }
+    })
+}
+
+/// The cell a search is expanding: its index, column, row and whether every cell within
+/// two steps is inside the grid (then no bounds checks are needed).
+#[derive(Debug, Clone, Copy)]
+struct At {
+    cell: usize,
+    col: i64,
+    row: i64,
+    interior: bool,
+}
+
 impl<M: StepModel + ?Sized> Planner<'_, M> {
     fn cell_xy(&self, cell: usize) -> (f64, f64) {
         let c = self.dem.cell_size();
@@ -212,90 +270,99 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         (xa - xb).hypot(ya - yb)
     }
 
+    #[inline]
     fn z(&self, cell: usize) -> f64 {
         self.dem.data()[cell] as f64
+    }
+
+    fn at(&self, cell: usize) -> At {
+        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
+        let (col, row) = ((cell as i64) % w, (cell as i64) / w);
+        At {
+            cell,
+            col,
+            row,
+            interior: col >= 2 && row >= 2 && col + 2 < w && row + 2 < h,
+        }
     }
 
     /// The step from `from` in direction `dir`, checked against the grid, the cell
     /// blocks and the tilt limits (not yet against the vehicle).
     pub fn geometry(&self, from: usize, dir: usize) -> Result<Step, Blocked> {
-        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
-        let (c0, r0) = ((from as i64) % w, (from as i64) / w);
-        let (dc, dr) = DIRECTIONS[dir];
-        let (c1, r1) = (c0 + dc as i64, r0 + dr as i64);
-        if c1 < 0 || r1 < 0 || c1 >= w || r1 >= h {
-            return Err(Blocked::GridEdge);
+        let table = dir_table(self.dem);
+        self.step_geometry(self.at(from), &table[dir])
+    }
+
+    /// Row-major index of (col + dc, row + dr), or None outside the grid.
+    #[inline]
+    fn offset(&self, at: At, dc: i64, dr: i64, delta: isize) -> Option<usize> {
+        if at.interior {
+            return Some((at.cell as isize + delta) as usize);
         }
-        let to = (r1 * w + c1) as usize;
+        let (c, r) = (at.col + dc, at.row + dr);
+        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
+        (c >= 0 && r >= 0 && c < w && r < h).then(|| (at.cell as isize + delta) as usize)
+    }
+
+    #[inline]
+    fn step_geometry(&self, at: At, di: &DirInfo) -> Result<Step, Blocked> {
+        let to = self.offset(at, di.dc, di.dr, di.delta).ok_or(Blocked::GridEdge)?;
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
-        let flanks = flank_cells(dc, dr);
-        let idx = |(fc, fr): (i32, i32)| -> Option<usize> {
-            let (c, r) = (c0 + fc as i64, r0 + fr as i64);
-            (c >= 0 && r >= 0 && c < w && r < h).then(|| (r * w + c) as usize)
-        };
-        if dc.abs() + dr.abs() > 1 {
-            for f in flanks.iter().flatten() {
-                if let Some(b) = idx(*f).and_then(|i| self.flags.blocked(i)) {
+        let mut flank = [[None; 2]; 2];
+        for (p, pair) in di.flanks.iter().enumerate() {
+            for (q, &(fc, fr)) in pair.iter().enumerate() {
+                flank[p][q] = self.offset(at, fc as i64, fr as i64, di.flank_delta[p][q]);
+            }
+        }
+        if di.needs_free_flanks {
+            for f in flank[0].iter().flatten() {
+                if let Some(b) = self.flags.blocked(*f) {
                     return Err(b);
                 }
             }
         }
-        let cs = self.dem.cell_size();
-        let (ex, ny) = (dc as f64 * cs.dx_m, -(dr as f64) * cs.dy_m);
-        let d = ex.hypot(ny);
-        let dz = self.z(to) - self.z(from);
-        let s = dz / d;
-        let (pitch, _) = pitch_roll_from_slopes(s, 0.0);
+        let dz = self.z(to) - self.z(at.cell);
+        let s = dz / di.d_m;
+        let pitch = s.atan();
         if pitch > self.limits.max_pitch_up_rad {
             return Err(Blocked::PitchUp);
         }
         if -pitch > self.limits.max_pitch_down_rad {
             return Err(Blocked::PitchDown);
         }
-        let t = self.cross_slope(&flanks, &idx, (ex / d, ny / d));
+        let t = self.cross_slope(&flank, &di.flank_sep);
         let (_, roll) = pitch_roll_from_slopes(s, t);
         if roll.abs() > self.limits.max_roll_rad {
             return Err(Blocked::Roll);
         }
         Ok(Step {
-            d_m: d,
+            d_m: di.d_m,
             dz_m: dz,
-            heading_rad: crate::units::wrap_azimuth_rad(ex.atan2(ny)),
+            heading_rad: di.heading_rad,
             pitch_rad: pitch,
             roll_rad: roll,
-            from,
+            from: at.cell,
             to,
         })
     }
 
     /// Cross slope t = (z_right − z_left) / separation across the heading, averaged over
     /// the flank pairs with data (0 when none has data).
-    fn cross_slope(
-        &self,
-        flanks: &[[(i32, i32); 2]; 2],
-        idx: &impl Fn((i32, i32)) -> Option<usize>,
-        (hx, hy): (f64, f64),
-    ) -> f64 {
-        let cs = self.dem.cell_size();
+    #[inline]
+    fn cross_slope(&self, flank: &[[Option<usize>; 2]; 2], sep: &[f64; 2]) -> f64 {
         let (mut sum, mut n) = (0.0, 0);
-        for pair in flanks {
-            let (Some(l), Some(r)) = (idx(pair[0]), idx(pair[1])) else {
+        for (pair, &sp) in flank.iter().zip(sep) {
+            let (Some(l), Some(r)) = (pair[0], pair[1]) else {
                 continue;
             };
             let (zl, zr) = (self.z(l), self.z(r));
-            if zl.is_nan() || zr.is_nan() {
+            if zl.is_nan() || zr.is_nan() || sp.abs() < 1e-9 {
                 continue;
             }
-            // Separation of right minus left, projected on the right-hand normal (hy, −hx).
-            let sx = (pair[1].0 - pair[0].0) as f64 * cs.dx_m;
-            let sy = -((pair[1].1 - pair[0].1) as f64) * cs.dy_m;
-            let sep = sx * hy - sy * hx;
-            if sep.abs() > 1e-9 {
-                sum += (zr - zl) / sep;
-                n += 1;
-            }
+            sum += (zr - zl) / sp;
+            n += 1;
         }
         if n == 0 {
             0.0
@@ -305,31 +372,29 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     /// Reduced-cost A* from `start` to `goal`. `ws` is reused across calls.
-    pub fn search(
-        &self,
-        start: usize,
-        goal: usize,
-        ws: &mut Workspace,
-    ) -> Result<GridPath, Unreachable> {
+    pub fn search(&self, start: usize, goal: usize, ws: &mut Workspace) -> Result<GridPath, Unreachable> {
         let n = self.dem.len();
         ws.g.clear();
         ws.g.resize(n, f64::INFINITY);
         ws.state.clear();
         ws.state.resize(n, NO_PARENT);
         ws.heap.clear();
+        let table = dir_table(self.dem);
+        let table = &table[..self.connectivity.count()];
         let k = self.objective.potential_per_m(self.model);
         let z_goal = self.z(goal);
+        let cs = self.dem.cell_size();
+        let w = self.dem.width();
+        let (gc, gr) = ((goal % w) as f64, (goal / w) as f64);
         let heuristic = |v: usize| -> f64 {
-            let b = self.objective.lower_bound(
-                self.model,
-                self.distance_m(v, goal),
-                z_goal - self.z(v),
-            );
-            (b - k * (z_goal - self.z(v))).max(0.0)
+            let dx = ((v % w) as f64 - gc) * cs.dx_m;
+            let dy = ((v / w) as f64 - gr) * cs.dy_m;
+            let dz = z_goal - self.z(v);
+            let b = self.objective.lower_bound(self.model, dx.hypot(dy), dz);
+            (b - k * dz).max(0.0)
         };
         ws.g[start] = 0.0;
         ws.heap.push(heuristic(start), start as u32);
-        let dirs = self.connectivity.count();
         let mut expanded = 0u64;
         while let Some((_, u32v)) = ws.heap.pop() {
             let u = u32v as usize;
@@ -342,14 +407,17 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 return Ok(self.trace(ws, start, goal, k, expanded));
             }
             let gu = ws.g[u];
-            for dir in 0..dirs {
-                let Ok(step) = self.geometry(u, dir) else {
+            let at = self.at(u);
+            for (dir, di) in table.iter().enumerate() {
+                let Some(v) = self.offset(at, di.dc, di.dr, di.delta) else {
                     continue;
                 };
-                let v = step.to;
                 if ws.state[v] & CLOSED != 0 {
                     continue;
                 }
+                let Ok(step) = self.step_geometry(at, di) else {
+                    continue;
+                };
                 let Ok(e) = self.model.step(&step) else {
                     continue;
                 };
@@ -389,14 +457,16 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut counts = [0u64; 8];
         let mut nearest = (usize::MAX, f64::INFINITY);
         let mut reached = 0;
+        let table = dir_table(self.dem);
         for u in (0..self.dem.len()).filter(|&u| ws.state[u] & CLOSED != 0) {
             reached += 1;
             let d = self.distance_m(u, goal);
             if d < nearest.1 {
                 nearest = (u, d);
             }
-            for dir in 0..self.connectivity.count() {
-                let why = match self.geometry(u, dir) {
+            let at = self.at(u);
+            for di in &table[..self.connectivity.count()] {
+                let why = match self.step_geometry(at, di) {
                     Err(b) => b,
                     Ok(step) if ws.state[step.to] & CLOSED == 0 => match self.model.step(&step) {
                         Err(b) => b,
