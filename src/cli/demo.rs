@@ -40,9 +40,17 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     let info = info_of(Path::new(DEMO_NAME), &dem);
     let json = serde_json::to_string_pretty(&info).expect("plain data serialises");
     write_atomic(&out("info.json"), |w| w.write_all(json.as_bytes()))?;
-    let slope_deg: Vec<f32> = slope::slope_map(&dem).data().iter().map(|v| v.to_degrees()).collect();
+    let slope_deg: Vec<f32> = slope::slope_map(&dem)
+        .data()
+        .iter()
+        .map(|v| v.to_degrees())
+        .collect();
     write_tif(&out("slope.tif"), &dem, &[&slope_deg])?;
-    write_tif(&out("roughness.tif"), &dem, &[roughness::roughness_map(&dem).data()])?;
+    write_tif(
+        &out("roughness.tif"),
+        &dem,
+        &[roughness::roughness_map(&dem).data()],
+    )?;
     write_hillshade(&out("hillshade.png"), &dem, 315.0, 45.0)?;
     let map = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
     let bands: Vec<Vec<f32>> = (0..map.sectors()).map(|k| map.sector_degrees(k)).collect();
@@ -52,10 +60,22 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     write_tif(&out("sky_view.tif"), &dem, &[svf.data()])?;
     let (_, _, svf_mean) = svf.stats().unwrap_or((0.0, 0.0, 1.0));
     println!("Vardholm plateau demo terrain");
-    println!("  {} x {} cells of {:.1} m, elevation {:.1} .. {:.1} m", info.width, info.height, info.cell_size_m, info.z_min_m, info.z_max_m);
-    println!("  slope mean {:.1} deg, max {:.1} deg", info.slope_mean_deg, info.slope_max_deg);
-    println!("  mean sky-view factor {svf_mean:.3} over {} horizon sectors", map.sectors());
-    println!("outputs in {}: info.json slope.tif roughness.tif hillshade.png horizon.tif sky_view.tif", a.out.display());
+    println!(
+        "  {} x {} cells of {:.1} m, elevation {:.1} .. {:.1} m",
+        info.width, info.height, info.cell_size_m, info.z_min_m, info.z_max_m
+    );
+    println!(
+        "  slope mean {:.1} deg, max {:.1} deg",
+        info.slope_mean_deg, info.slope_max_deg
+    );
+    println!(
+        "  mean sky-view factor {svf_mean:.3} over {} horizon sectors",
+        map.sectors()
+    );
+    println!(
+        "outputs in {}: info.json slope.tif roughness.tif hillshade.png horizon.tif sky_view.tif",
+        a.out.display()
+    );
     println!("(route planning, solar, battery and mission verdicts are not built yet)");
     Ok(())
 }

@@ -70,7 +70,10 @@ impl DemArgs {
 
     /// Reads the DEM.
     pub fn load(&self) -> Result<sunward::terrain::Dem, Error> {
-        Ok(sunward::terrain::io::read_dem(&self.dem, &self.read_options())?)
+        Ok(sunward::terrain::io::read_dem(
+            &self.dem,
+            &self.read_options(),
+        )?)
     }
 }
 

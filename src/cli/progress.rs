@@ -53,7 +53,11 @@ impl Progress for Bar {
             };
             let pct = 100.0 * done as f64 / s.total.max(1) as f64;
             let mut err = std::io::stderr().lock();
-            let _ = write!(err, "\r{}: {done}/{} ({pct:.0} %), {eta:.0} s left   ", s.label, s.total);
+            let _ = write!(
+                err,
+                "\r{}: {done}/{} ({pct:.0} %), {eta:.0} s left   ",
+                s.label, s.total
+            );
             let _ = err.flush();
         }
     }

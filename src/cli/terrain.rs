@@ -160,10 +160,19 @@ fn print_info(i: &TerrainInfo) {
     println!("size          {} x {} cells", i.width, i.height);
     println!("cell size     {:.4} x {:.4} m", i.cell_dx_m, i.cell_dy_m);
     println!("crs           {}", i.crs);
-    println!("origin        ({}, {}) upper-left corner", i.origin_x, i.origin_y);
-    println!("elevation     {:.2} .. {:.2} m, mean {:.2} m", i.z_min_m, i.z_max_m, i.z_mean_m);
+    println!(
+        "origin        ({}, {}) upper-left corner",
+        i.origin_x, i.origin_y
+    );
+    println!(
+        "elevation     {:.2} .. {:.2} m, mean {:.2} m",
+        i.z_min_m, i.z_max_m, i.z_mean_m
+    );
     println!("no-data cells {}", i.nodata_cells);
-    println!("slope         mean {:.2} deg, max {:.2} deg", i.slope_mean_deg, i.slope_max_deg);
+    println!(
+        "slope         mean {:.2} deg, max {:.2} deg",
+        i.slope_mean_deg, i.slope_max_deg
+    );
 }
 
 /// Writes grids (bands) as a Float32 GeoTIFF atomically.
@@ -181,14 +190,18 @@ fn degrees(g: &Grid<f32>) -> Vec<f32> {
 pub fn write_hillshade(out: &Path, dem: &Dem, az_deg: f64, alt_deg: f64) -> Result<(), Error> {
     let hs = hillshade::hillshade(dem, az_deg.to_radians(), alt_deg.to_radians());
     let grey = hillshade::to_grey(&hs);
-    write_atomic(out, |w| png::write_gray8(w, dem.width(), dem.height(), &grey))
+    write_atomic(out, |w| {
+        png::write_gray8(w, dem.width(), dem.height(), &grey)
+    })
 }
 
 fn check_angle(name: &str, v: f64, lo: f64, hi: f64) -> Result<(), Error> {
     if v.is_finite() && (lo..=hi).contains(&v) {
         Ok(())
     } else {
-        Err(Error::Usage(format!("{name} = {v} is out of range: expected {lo} to {hi} degrees")))
+        Err(Error::Usage(format!(
+            "{name} = {v} is out of range: expected {lo} to {hi} degrees"
+        )))
     }
 }
 
@@ -198,7 +211,10 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
             let dem = a.dem.load()?;
             let info = info_of(&a.dem.dem, &dem);
             if a.json {
-                println!("{}", serde_json::to_string_pretty(&info).expect("plain data serialises"));
+                println!(
+                    "{}",
+                    serde_json::to_string_pretty(&info).expect("plain data serialises")
+                );
             } else {
                 print_info(&info);
             }
@@ -226,7 +242,12 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
             let bands: Vec<Vec<f32>> = (0..map.sectors()).map(|k| map.sector_degrees(k)).collect();
             let refs: Vec<&[f32]> = bands.iter().map(|b| b.as_slice()).collect();
             write_tif(&a.out, &dem, &refs)?;
-            eprintln!("wrote {} ({} bands, band k = azimuth k x {} deg)", a.out.display(), map.sectors(), 360.0 / map.sectors() as f64);
+            eprintln!(
+                "wrote {} ({} bands, band k = azimuth k x {} deg)",
+                a.out.display(),
+                map.sectors(),
+                360.0 / map.sectors() as f64
+            );
             if let Some(s) = &a.sky_view {
                 let svf = horizon::sky_view_map(&dem, &map);
                 write_tif(s, &dem, &[svf.data()])?;

@@ -9,7 +9,10 @@ use std::path::{Path, PathBuf};
 use crate::error::Error;
 
 fn temp_path(path: &Path) -> PathBuf {
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
     path.with_file_name(format!(".{name}.sunward-{}.tmp", std::process::id()))
 }
 

@@ -242,7 +242,11 @@ fn check_sectors(sectors: usize) -> Result<(), TerrainError> {
 }
 
 /// Horizon maps by convex-hull sweeps (see the module doc). Sectors run in parallel.
-pub fn horizon_map(dem: &Dem, sectors: usize, progress: &dyn Progress) -> Result<HorizonMap, TerrainError> {
+pub fn horizon_map(
+    dem: &Dem,
+    sectors: usize,
+    progress: &dyn Progress,
+) -> Result<HorizonMap, TerrainError> {
     check_sectors(sectors)?;
     let cells = dem.len();
     let cell = dem.cell_size();
@@ -316,7 +320,11 @@ fn sweep_sector(dem: &Dem, sw: Sweep, out: &mut [f32]) {
             if owns_cell {
                 let cell_value = dem.data()[axes.cell_index(m as usize, cell_minor as usize)];
                 let idx = axes.cell_index(m as usize, cell_minor as usize);
-                out[idx] = if cell_value.is_nan() { 0.0 } else { angle as f32 };
+                out[idx] = if cell_value.is_nan() {
+                    0.0
+                } else {
+                    angle as f32
+                };
             }
         }
     }
@@ -394,7 +402,10 @@ mod tests {
     use crate::terrain::raster::GeoRef;
 
     fn flat_with(w: usize, h: usize, cell_m: f64, f: impl Fn(usize, usize) -> f32) -> Dem {
-        let data = (0..h).flat_map(|r| (0..w).map(move |c| (r, c))).map(|(r, c)| f(c, r)).collect();
+        let data = (0..h)
+            .flat_map(|r| (0..w).map(move |c| (r, c)))
+            .map(|(r, c)| f(c, r))
+            .collect();
         Grid::from_vec(w, h, data, GeoRef::local(cell_m))
     }
 
@@ -410,7 +421,10 @@ mod tests {
         let map = horizon_map(&dem, 4, &Silent).unwrap();
         for r in 1..40 {
             let d = r as f64 * 5.0;
-            assert!((map.angle(4, r, 0) - curved(30.0, d)).abs() < 1e-6, "row {r}");
+            assert!(
+                (map.angle(4, r, 0) - curved(30.0, d)).abs() < 1e-6,
+                "row {r}"
+            );
             // Looking south at a flat plain: nothing rises above the observer.
             assert_eq!(map.angle(4, r, 2), 0.0);
         }

@@ -379,8 +379,14 @@ mod tests {
             let lon_deg_m = n * p.cos() * 1f64.to_radians();
             let want_lat = 111_132.954 - 559.822 * (2.0 * p).cos() + 1.175 * (4.0 * p).cos();
             let want_lon = 111_412.84 * p.cos() - 93.5 * (3.0 * p).cos() + 0.118 * (5.0 * p).cos();
-            assert!((lat_deg_m - want_lat).abs() < 0.05, "{lat}: {lat_deg_m} vs {want_lat}");
-            assert!((lon_deg_m - want_lon).abs() < 0.5, "{lat}: {lon_deg_m} vs {want_lon}");
+            assert!(
+                (lat_deg_m - want_lat).abs() < 0.05,
+                "{lat}: {lat_deg_m} vs {want_lat}"
+            );
+            assert!(
+                (lon_deg_m - want_lon).abs() < 0.5,
+                "{lat}: {lon_deg_m} vs {want_lon}"
+            );
         }
     }
 

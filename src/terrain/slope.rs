@@ -82,7 +82,11 @@ fn fill_window(dem: &Dem, col: usize, row: usize, e: f64, z: &mut [[f64; 3]; 3])
     for (dc, dr) in [(-1isize, -1isize), (1, -1), (-1, 1), (1, 1)] {
         let v = extrapolate(dc, dr);
         let (ic, ir) = ((dc + 1) as usize, (dr + 1) as usize);
-        z[ir][ic] = if v.is_nan() { z[1][ic] + z[ir][1] - e } else { v };
+        z[ir][ic] = if v.is_nan() {
+            z[1][ic] + z[ir][1] - e
+        } else {
+            v
+        };
     }
 }
 
@@ -152,9 +156,15 @@ mod tests {
             let want_s = (a as f64).hypot(b).atan();
             let want_a = crate::units::wrap_azimuth_rad((-a as f64).atan2(-b));
             for i in 0..w * h {
-                assert!((s.data()[i] as f64 - want_s).abs() < 1e-5, "slope {a} {b} cell {i}");
+                assert!(
+                    (s.data()[i] as f64 - want_s).abs() < 1e-5,
+                    "slope {a} {b} cell {i}"
+                );
                 let da = (asp.data()[i] as f64 - want_a).abs();
-                assert!(da < 1e-5 || (da - std::f64::consts::TAU).abs() < 1e-5, "aspect {i}");
+                assert!(
+                    da < 1e-5 || (da - std::f64::consts::TAU).abs() < 1e-5,
+                    "aspect {i}"
+                );
             }
         }
     }

@@ -78,7 +78,9 @@ fn mix(mut z: u64) -> u64 {
 
 /// Lattice value in [−1, 1] for integer point (i, j) of an octave.
 fn lattice(seed: u64, octave: u32, i: i64, j: i64) -> f64 {
-    let h = mix(seed ^ mix((i as u64).wrapping_mul(0x9E37_79B1) ^ mix(j as u64 ^ ((octave as u64) << 48))));
+    let h =
+        mix(seed
+            ^ mix((i as u64).wrapping_mul(0x9E37_79B1) ^ mix(j as u64 ^ ((octave as u64) << 48))));
     (h >> 11) as f64 / (1u64 << 52) as f64 - 1.0
 }
 
@@ -190,7 +192,13 @@ pub fn synthesize(p: &SynthParams) -> Result<Dem, TerrainError> {
         for c in 0..p.size {
             let x = (c as f64 + 0.5) * p.cell_m;
             let y = extent - (r as f64 + 0.5) * p.cell_m;
-            let n = fbm(noise_seed, x / wavelength, y / wavelength, octaves, PERSISTENCE);
+            let n = fbm(
+                noise_seed,
+                x / wavelength,
+                y / wavelength,
+                octaves,
+                PERSISTENCE,
+            );
             let z = p.base_m + p.relief * extent * n + forms.height(x, y, extent, p.cell_m);
             data.push(z as f32);
         }
@@ -220,7 +228,15 @@ mod tests {
 
     #[test]
     fn bad_parameters_are_refused() {
-        assert!(synthesize(&SynthParams { size: 3, ..SynthParams::default() }).is_err());
-        assert!(synthesize(&SynthParams { cell_m: -1.0, ..SynthParams::default() }).is_err());
+        assert!(synthesize(&SynthParams {
+            size: 3,
+            ..SynthParams::default()
+        })
+        .is_err());
+        assert!(synthesize(&SynthParams {
+            cell_m: -1.0,
+            ..SynthParams::default()
+        })
+        .is_err());
     }
 }

@@ -49,7 +49,12 @@ fn bad(path: &Path, line: usize, detail: impl std::fmt::Display) -> TerrainError
 }
 
 /// Parses the text of a grid; `prj` is the WKT of the .prj beside it, if any.
-pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
+pub fn parse(
+    text: &str,
+    prj: Option<&str>,
+    path: &Path,
+    max_cells: u64,
+) -> Result<Dem, TerrainError> {
     let mut h = Header::default();
     let mut lines = text.lines().enumerate().peekable();
     while let Some(&(i, line)) = lines.peek() {
@@ -61,7 +66,9 @@ pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Resu
         if key.parse::<f64>().is_ok() || key.starts_with('-') {
             break;
         }
-        let value = parts.next().ok_or_else(|| bad(path, i + 1, format!("{key} has no value")))?;
+        let value = parts
+            .next()
+            .ok_or_else(|| bad(path, i + 1, format!("{key} has no value")))?;
         let num = value
             .parse::<f64>()
             .map_err(|_| bad(path, i + 1, format!("{key} = {value:?} is not a number")))?;
@@ -69,7 +76,11 @@ pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Resu
             if v >= 1.0 && v.fract() == 0.0 && v < 1e12 {
                 Ok(v as u64)
             } else {
-                Err(bad(path, i + 1, format!("{key} = {value} must be a whole number ≥ 1")))
+                Err(bad(
+                    path,
+                    i + 1,
+                    format!("{key} = {value} must be a whole number ≥ 1"),
+                ))
             }
         };
         match key.to_ascii_lowercase().as_str() {
@@ -95,7 +106,11 @@ pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Resu
     let dx = h.dx.ok_or_else(|| missing("cellsize"))?;
     let dy = h.dy.ok_or_else(|| missing("cellsize (dy)"))?;
     if !(dx > 0.0 && dy > 0.0 && dx.is_finite() && dy.is_finite()) {
-        return Err(bad(path, 1, format!("cell size {dx} x {dy} must be positive")));
+        return Err(bad(
+            path,
+            1,
+            format!("cell size {dx} x {dy} must be positive"),
+        ));
     }
     let cells = ncols * nrows;
     if cells > max_cells {
@@ -116,7 +131,11 @@ pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Resu
                 .parse()
                 .map_err(|_| bad(path, i + 1, format!("{tok:?} is not a number")))?;
             if data.len() as u64 == cells {
-                return Err(bad(path, i + 1, format!("more than ncols x nrows = {cells} values")));
+                return Err(bad(
+                    path,
+                    i + 1,
+                    format!("more than ncols x nrows = {cells} values"),
+                ));
             }
             let nodata = h.nodata.is_some_and(|nd| v == nd) || !v.is_finite();
             data.push(if nodata { f32::NAN } else { v as f32 });
@@ -126,7 +145,10 @@ pub fn parse(text: &str, prj: Option<&str>, path: &Path, max_cells: u64) -> Resu
         return Err(bad(
             path,
             last_line,
-            format!("found {} values, the header says ncols x nrows = {cells}", data.len()),
+            format!(
+                "found {} values, the header says ncols x nrows = {cells}",
+                data.len()
+            ),
         ));
     }
     let origin_x = if x_centre { x - 0.5 * dx } else { x };
@@ -209,8 +231,13 @@ mod tests {
     #[test]
     fn too_few_values_names_the_count() {
         let text = "ncols 3\nnrows 2\nxllcorner 0\nyllcorner 0\ncellsize 1\n1 2 3\n4 5\n";
-        let e = parse(text, None, Path::new("short.asc"), 100).unwrap_err().to_string();
-        assert!(e.contains("short.asc") && e.contains("found 5 values"), "{e}");
+        let e = parse(text, None, Path::new("short.asc"), 100)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("short.asc") && e.contains("found 5 values"),
+            "{e}"
+        );
     }
 
     #[test]

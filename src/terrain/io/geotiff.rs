@@ -52,7 +52,8 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
         )
     };
     let mut limits = Limits::default();
-    limits.decoding_buffer_size = usize::try_from(max_cells.saturating_mul(8)).unwrap_or(usize::MAX);
+    limits.decoding_buffer_size =
+        usize::try_from(max_cells.saturating_mul(8)).unwrap_or(usize::MAX);
     limits.intermediate_buffer_size = limits.decoding_buffer_size;
     let mut dec = Decoder::new(r).map_err(bad)?.with_limits(limits);
     let (w, h) = dec.dimensions().map_err(bad)?;
@@ -89,7 +90,10 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
     Ok(Grid::from_vec(w as usize, h as usize, values, georef))
 }
 
-fn check_sample_type<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Result<(), TerrainError> {
+fn check_sample_type<R: Read + Seek>(
+    dec: &mut Decoder<R>,
+    path: &Path,
+) -> Result<(), TerrainError> {
     let color = dec.colortype().map_err(|e| {
         TerrainError::unsupported(
             path,
@@ -137,7 +141,10 @@ fn check_sample_type<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Resul
 }
 
 fn tag_f64s<R: Read + Seek>(dec: &mut Decoder<R>, tag: Tag) -> Option<Vec<f64>> {
-    dec.find_tag(tag).ok().flatten().and_then(|v| v.into_f64_vec().ok())
+    dec.find_tag(tag)
+        .ok()
+        .flatten()
+        .and_then(|v| v.into_f64_vec().ok())
 }
 
 fn read_georef<R: Read + Seek>(dec: &mut Decoder<R>, path: &Path) -> Result<GeoRef, TerrainError> {
@@ -319,7 +326,11 @@ fn crs_from_keys(keys: Option<GeoKeys>) -> Crs {
     }
 }
 
-fn to_f32(data: DecodingResult, nodata: Option<f64>, path: &Path) -> Result<Vec<f32>, TerrainError> {
+fn to_f32(
+    data: DecodingResult,
+    nodata: Option<f64>,
+    path: &Path,
+) -> Result<Vec<f32>, TerrainError> {
     let nd = nodata.unwrap_or(f64::NAN);
     let conv = |v: f64| -> f32 {
         if !v.is_finite() || v == nd {
@@ -556,7 +567,9 @@ mod tests {
         g.origin_y = 7_000_000.0;
         g.crs.epsg = Some(32633);
         g.crs.kind = CrsKind::Projected;
-        let data = (0..12).map(|i| if i == 5 { f32::NAN } else { i as f32 * 1.5 }).collect();
+        let data = (0..12)
+            .map(|i| if i == 5 { f32::NAN } else { i as f32 * 1.5 })
+            .collect();
         Grid::from_vec(4, 3, data, g)
     }
 
@@ -584,7 +597,14 @@ mod tests {
         let mut bytes = Vec::new();
         write(&mut bytes, &grid.georef, 4, 3, &[grid.data()]).unwrap();
         let err = read_from(Cursor::new(bytes), Path::new("big.tif"), 11).unwrap_err();
-        assert!(matches!(err, TerrainError::TooLarge { cells: 12, limit: 11, .. }));
+        assert!(matches!(
+            err,
+            TerrainError::TooLarge {
+                cells: 12,
+                limit: 11,
+                ..
+            }
+        ));
     }
 
     #[test]

@@ -47,7 +47,12 @@ pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, Terrai
         source,
     })?;
     let bad = |e: png::DecodingError| {
-        TerrainError::malformed(path, FORMAT, e.to_string(), "check that the file is a complete PNG")
+        TerrainError::malformed(
+            path,
+            FORMAT,
+            e.to_string(),
+            "check that the file is a complete PNG",
+        )
     };
     let mut decoder = png::Decoder::new(BufReader::new(file));
     decoder.set_transformations(png::Transformations::IDENTITY);
@@ -80,7 +85,9 @@ pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, Terrai
     let mut buf = vec![0u8; size];
     reader.next_frame(&mut buf).map_err(bad)?;
     let raw: Vec<u16> = if depth == 16 {
-        buf.chunks_exact(2).map(|b| u16::from_be_bytes([b[0], b[1]])).collect()
+        buf.chunks_exact(2)
+            .map(|b| u16::from_be_bytes([b[0], b[1]]))
+            .collect()
     } else {
         buf.iter().map(|&b| b as u16).collect()
     };
@@ -95,11 +102,21 @@ pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, Terrai
             }
         })
         .collect();
-    Ok(Grid::from_vec(w as usize, h as usize, data, GeoRef::local(scale.cell_m)))
+    Ok(Grid::from_vec(
+        w as usize,
+        h as usize,
+        data,
+        GeoRef::local(scale.cell_m),
+    ))
 }
 
 /// Encodes 8-bit greyscale pixels (row-major) as a PNG picture.
-pub fn write_gray8<W: Write>(out: W, width: usize, height: usize, pixels: &[u8]) -> std::io::Result<()> {
+pub fn write_gray8<W: Write>(
+    out: W,
+    width: usize,
+    height: usize,
+    pixels: &[u8],
+) -> std::io::Result<()> {
     let mut enc = png::Encoder::new(out, width as u32, height as u32);
     enc.set_color(png::ColorType::Grayscale);
     enc.set_depth(png::BitDepth::Eight);
@@ -109,7 +126,12 @@ pub fn write_gray8<W: Write>(out: W, width: usize, height: usize, pixels: &[u8])
 }
 
 /// Encodes 16-bit greyscale samples (row-major) as a PNG heightmap.
-pub fn write_gray16<W: Write>(out: W, width: usize, height: usize, samples: &[u16]) -> std::io::Result<()> {
+pub fn write_gray16<W: Write>(
+    out: W,
+    width: usize,
+    height: usize,
+    samples: &[u16],
+) -> std::io::Result<()> {
     let mut enc = png::Encoder::new(out, width as u32, height as u32);
     enc.set_color(png::ColorType::Grayscale);
     enc.set_depth(png::BitDepth::Sixteen);
