@@ -133,15 +133,15 @@ fn sinkage_equals_the_integrated_load_balance_up_to_bekkers_series_truncation() 
 
 /// The closed form against the true circular arc (SciPy): on top of the series
 /// truncation, the small-sinkage arc drops higher-order terms; the script's cases show
-/// that gap growing about linearly with z₀/D, at most 0.27·z₀/D; the check allows
-/// 0.3·z₀/D on top of the truncation (README).
+/// that gap growing about linearly with z₀/D, at most 0.39·z₀/D (clay, n 0.5); the
+/// check allows 0.45·z₀/D on top of the truncation (README).
 #[test]
 fn sinkage_stays_near_the_true_circular_arc() {
     check_all("arc", |c| {
         let z = sinkage_m(&c.soil, c.wheel, c.load_n);
         let truncation = (z / c.z_par_m - 1.0).abs();
         let gap = (z / c.z_arc_m - 1.0).abs();
-        (gap > truncation * (1.0 + 1e-9) + 0.3 * z / c.wheel.diameter_m)
+        (gap > (1.0 + truncation) * (1.0 + 0.45 * z / c.wheel.diameter_m) - 1.0)
             .then(|| format!("gap {gap}, truncation {truncation}"))
     });
 }

@@ -37,7 +37,7 @@
 //! (tests/reference/vehicle): the closed form's series truncation (it replaces
 //! B(n+1, ½)/2 by (3 − n)/3) moves the sinkage by −5.8 % at n = 0.5, −3.9 % at n = 0.7,
 //! +1.5 % at n = 1.1 and +10.6 % at n = 1.6 (exact at n = 1); the small-sinkage arc adds
-//! up to about 0.3 · z₀/D. Both are small beside the spread of real soil values.
+//! up to about 0.4 · z₀/D. Both are small beside the spread of real soil values.
 //! Bekker's closed form is for a rigid wheel in homogeneous soil at small sinkage; Wong
 //! warns that it loses accuracy for wheels under about 50 cm diameter and for sinkage
 //! above about D/6 (from memory). Left out: bulldozing resistance, slip sinkage, grousers,
