@@ -20,7 +20,10 @@ impl StepModel for BenchRover {
     fn step(&self, s: &Step) -> Result<StepEnergy, Blocked> {
         let w = MG * (0.08 * s.d_m + s.dz_m);
         let t = s.d_m.hypot(s.dz_m) / 0.5;
-        Ok(StepEnergy { energy_j: w.max(0.0) / 0.7 + 25.0 * t, time_s: t })
+        Ok(StepEnergy {
+            energy_j: w.max(0.0) / 0.7 + 25.0 * t,
+            time_s: t,
+        })
     }
     fn energy_lower_bound_j(&self, d: f64, dz: f64) -> f64 {
         (MG * (0.08 * d + dz)).max(0.0) / 0.7 + 25.0 * d.hypot(dz) / 0.5
@@ -34,15 +37,28 @@ impl StepModel for BenchRover {
 }
 
 fn main() {
-    let size: usize = std::env::var("SUNWARD_BENCH_SIZE").ok().and_then(|s| s.parse().ok()).unwrap_or(4096);
-    let dem = synthesize(&SynthParams { size, cell_m: 1.0, seed: 4, ..Default::default() }).unwrap();
+    let size: usize = std::env::var("SUNWARD_BENCH_SIZE")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(4096);
+    let dem = synthesize(&SynthParams {
+        size,
+        cell_m: 1.0,
+        seed: 4,
+        ..Default::default()
+    })
+    .unwrap();
     let flags = CellFlags::from_dem(&dem);
     let limit = 25f64.to_radians();
     let p = Planner {
         dem: &dem,
         flags: &flags,
         model: &BenchRover,
-        limits: TiltLimits { max_pitch_up_rad: limit, max_pitch_down_rad: limit, max_roll_rad: limit },
+        limits: TiltLimits {
+            max_pitch_up_rad: limit,
+            max_pitch_down_rad: limit,
+            max_roll_rad: limit,
+        },
         connectivity: Connectivity::Eight,
         objective: Objective::ENERGY,
     };

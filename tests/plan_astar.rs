@@ -409,31 +409,96 @@ fn slope_too_steep_to_climb_straight_forces_switchbacks() {
     assert_eq!(why.nearest.1, 29.0);
 }
 
-/// The model contract of sunward::plan::cost, on random steps: energy and time above the
-/// bounds, bounds subadditive, energy above k·dz.
-#[test]
-fn test_rover_keeps_the_model_contract() {
-    let mut rng = SplitMix64::new(3);
-    let m = rover(0.6);
+/// Checks the model contract of sunward::plan::cost on random steps: energy and time
+/// above the bounds, bounds subadditive, energy above k·dz.
+fn check_contract<M: StepModel>(m: &M, seed: u64) -> usize {
+    let mut rng = SplitMix64::new(seed);
+    let mut accepted = 0;
     for _ in 0..10_000 {
         let d = 0.5 + 5.0 * rng.next_f64();
-        let dz = (rng.next_f64() - 0.5) * 4.0;
+        let dz = (rng.next_f64() - 0.5) * 2.0;
         let pitch = (dz / d).atan();
+        let roll = (rng.next_f64() - 0.5) * 0.3;
         let s = Step {
             d_m: d,
             dz_m: dz,
             heading_rad: 0.0,
             pitch_rad: pitch,
-            roll_rad: 0.0,
+            roll_rad: roll,
             from: 0,
             to: 1,
         };
-        let e = m.step(&s).unwrap();
-        assert!(e.energy_j >= m.energy_lower_bound_j(d, dz) - 1e-9);
-        assert!(e.time_s >= m.time_lower_bound_s(d, dz) - 1e-12);
-        assert!(e.energy_j >= m.regen_bound_j_per_m() * dz - 1e-9);
         let (d2, dz2) = (5.0 * rng.next_f64(), (rng.next_f64() - 0.5) * 4.0);
         let lb_sum = m.energy_lower_bound_j(d, dz) + m.energy_lower_bound_j(d2, dz2);
         assert!(m.energy_lower_bound_j(d + d2, dz + dz2) <= lb_sum + 1e-9);
+        assert!(m.energy_lower_bound_j(d, dz) >= m.regen_bound_j_per_m() * dz - 1e-9);
+        let Ok(e) = m.step(&s) else { continue };
+        accepted += 1;
+        assert!(
+            e.energy_j >= m.energy_lower_bound_j(d, dz) - 1e-9,
+            "{s:?}: {e:?}"
+        );
+        assert!(e.time_s >= m.time_lower_bound_s(d, dz) - 1e-12);
+        assert!(e.energy_j >= m.regen_bound_j_per_m() * dz - 1e-9);
     }
+    accepted
+}
+
+#[test]
+fn test_rover_keeps_the_model_contract() {
+    assert_eq!(check_contract(&rover(0.6), 3), 10_000);
+}
+
+/// The vehicle model's rover (firm ground with regen, and soft soil) keeps the contract
+/// too, so the planner stays exact with it; and on random grids it gives the same optimum
+/// as the reference Dijkstra.
+#[test]
+fn vehicle_rover_keeps_the_model_contract_and_plans_exactly() {
+    use sunward::vehicle::Rover;
+    let firm = Rover::from_toml_str("regen_fraction = 0.5\nmax_roll_deg = 30\n").unwrap();
+    let sand = Rover::from_toml_str("soil = \"sandy-loam\"\n").unwrap();
+    assert!(check_contract(&firm, 4) > 5_000);
+    assert!(check_contract(&sand, 5) > 1_000);
+    let mut rng = SplitMix64::new(99);
+    let mut compared = 0;
+    for _ in 0..20 {
+        let mut dem = random_dem(&mut rng, 9, 8);
+        dem.data_mut().iter_mut().for_each(|z| *z *= 0.3); // gentler: within 20° limits
+        let flags = CellFlags::from_dem(&dem);
+        let p = Planner {
+            dem: &dem,
+            flags: &flags,
+            model: &firm,
+            limits: TiltLimits::default(),
+            connectivity: Connectivity::Sixteen,
+            objective: Objective::ENERGY,
+        };
+        let (start, goal) = (0, dem.len() - 1);
+        if flags.blocked(start).is_some() || flags.blocked(goal).is_some() {
+            continue;
+        }
+        let graph = explicit_graph(&p);
+        let k = Objective::ENERGY.potential_per_m(&firm);
+        let zs = |c: usize| dem.data()[c] as f64;
+        let reference = pathfinding::directed::dijkstra::dijkstra(
+            &start,
+            |&u| {
+                graph[u]
+                    .iter()
+                    .map(move |&(v, c, dz)| (v, Cost(c - k * dz)))
+                    .collect::<Vec<_>>()
+            },
+            |&u| u == goal,
+        )
+        .map(|(_, c)| c.0 + k * (zs(goal) - zs(start)));
+        match (reference, p.search(start, goal, &mut Workspace::default())) {
+            (Some(r), Ok(path)) => {
+                assert!(rel_close(r, path.cost), "ref {r} ours {}", path.cost);
+                compared += 1;
+            }
+            (None, Err(_)) => {}
+            (r, o) => panic!("reference {r:?} vs ours {:?}", o.map(|p| p.cost)),
+        }
+    }
+    assert!(compared >= 5, "{compared}");
 }

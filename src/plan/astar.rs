@@ -306,7 +306,9 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
 
     #[inline]
     fn step_geometry(&self, at: At, di: &DirInfo) -> Result<Step, Blocked> {
-        let to = self.offset(at, di.dc, di.dr, di.delta).ok_or(Blocked::GridEdge)?;
+        let to = self
+            .offset(at, di.dc, di.dr, di.delta)
+            .ok_or(Blocked::GridEdge)?;
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
@@ -372,7 +374,12 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     /// Reduced-cost A* from `start` to `goal`. `ws` is reused across calls.
-    pub fn search(&self, start: usize, goal: usize, ws: &mut Workspace) -> Result<GridPath, Unreachable> {
+    pub fn search(
+        &self,
+        start: usize,
+        goal: usize,
+        ws: &mut Workspace,
+    ) -> Result<GridPath, Unreachable> {
         let n = self.dem.len();
         ws.g.clear();
         ws.g.resize(n, f64::INFINITY);
@@ -454,7 +461,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// Tallies why the edges leaving the reached region are closed, and finds the reached
     /// cell nearest the goal.
     fn explain(&self, ws: &Workspace, goal: usize) -> Unreachable {
-        let mut counts = [0u64; 8];
+        let mut counts = [0u64; Blocked::ALL.len()];
         let mut nearest = (usize::MAX, f64::INFINITY);
         let mut reached = 0;
         let table = dir_table(self.dem);

@@ -32,7 +32,7 @@ pub struct Step {
     pub heading_rad: f64,
     /// Body pitch, radians (+ nose up), from the step's own rise.
     pub pitch_rad: f64,
-    /// Body roll, radians (+ right side up), from the terrain beside the step.
+    /// Body roll, radians (+ left side up), from the terrain beside the step.
     pub roll_rad: f64,
     /// Row-major index of the cell the step starts in.
     pub from: usize,
@@ -67,6 +67,8 @@ pub enum Blocked {
     NoData,
     /// The soil cannot give the thrust the step needs.
     Traction,
+    /// The wheels would sink to their radius (stuck).
+    Sinkage,
     /// Off the edge of the grid.
     GridEdge,
 }
@@ -82,12 +84,13 @@ impl Blocked {
             Blocked::KeepOut => "keep-out area",
             Blocked::NoData => "no-data cells",
             Blocked::Traction => "traction limit",
+            Blocked::Sinkage => "sinkage limit",
             Blocked::GridEdge => "edge of the grid",
         }
     }
 
     /// All reasons, in report order.
-    pub const ALL: [Blocked; 8] = [
+    pub const ALL: [Blocked; 9] = [
         Blocked::PitchUp,
         Blocked::PitchDown,
         Blocked::Roll,
@@ -95,6 +98,7 @@ impl Blocked {
         Blocked::KeepOut,
         Blocked::NoData,
         Blocked::Traction,
+        Blocked::Sinkage,
         Blocked::GridEdge,
     ];
 }

@@ -10,7 +10,7 @@
 //!
 //! ```text
 //!   pitch θ = atan(s)                     (+ nose up)
-//!   roll  φ = atan(t / √(1 + s²))         (+ right side up)
+//!   roll  φ = −atan(t / √(1 + s²))        (+ left side up, as in the vehicle model)
 //! ```
 //!
 //! With these angles the ratio of the lateral to the normal component of gravity in the
@@ -33,10 +33,11 @@ pub fn pitch_roll(gx: f64, gy: f64, heading_rad: f64) -> (f64, f64) {
     pitch_roll_from_slopes(s, t)
 }
 
-/// Pitch and roll (radians) from the along-track slope s and the cross slope t (m/m).
+/// Pitch and roll (radians) from the along-track slope s and the cross slope t (m/m,
+/// rising to the right of the heading).
 #[inline]
 pub fn pitch_roll_from_slopes(s: f64, t: f64) -> (f64, f64) {
-    (s.atan(), (t / (1.0 + s * s).sqrt()).atan())
+    (s.atan(), (-t / (1.0 + s * s).sqrt()).atan())
 }
 
 #[cfg(test)]

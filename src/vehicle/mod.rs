@@ -16,11 +16,12 @@
 //!   energy with regeneration, time, attitude, and passability with the reason.
 //! - [`error`]: the stage's typed errors.
 //!
-//! The route planner's edge cost is [`Rover::step_cost`]; a `StepCost` trait in the
-//! planner can wrap it.
+//! - [`plan_model`]: the rover as the planner's `StepModel` (step cost plus the bounds
+//!   that keep A* exact).
 
 pub mod attitude;
 pub mod error;
+pub mod plan_model;
 pub mod powertrain;
 pub mod rover;
 pub mod stability;
