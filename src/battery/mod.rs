@@ -6,15 +6,26 @@
 //! - [`params`]: the `[battery]` table of a mission file, with defaults and ranges.
 //! - [`pack`]: the Rint pack model and its constant-power step (limits, flags,
 //!   bookkeeping that closes).
+//! - [`thermal`]: one lumped thermal node with a thermostat heater and survival limits
+//!   (the `[thermal]` table).
+//! - [`ambient`]: air temperature from monthly means and a diurnal swing, or a
+//!   measured series.
+//! - [`loads`]: named loads and their schedules (the `[loads]` table).
 //! - [`curve`]: the piecewise-linear tables the models share.
 //!
-//! Nothing here reads files, prints or looks at a clock.
+//! A simulation step calls, in order: [`loads::Loads::total_w`] for the demand,
+//! [`thermal::ThermalNode::step`] with the heat of electronics and the last step's
+//! I^2 R, then [`pack::Pack::step`] with the net terminal power (loads + heater -
+//! solar) at the box temperature. Nothing here reads files, prints or looks at a clock.
 
+pub mod ambient;
 pub mod chemistry;
 pub mod curve;
 mod error;
+pub mod loads;
 pub mod pack;
 pub mod params;
+pub mod thermal;
 
 pub use chemistry::Chemistry;
 pub use error::BatteryError;
