@@ -11,6 +11,8 @@
 //! - [`ambient`]: air temperature from monthly means and a diurnal swing, or a
 //!   measured series.
 //! - [`loads`]: named loads and their schedules (the `[loads]` table).
+//! - [`ageing`]: optional ageing estimate (equivalent full cycles, rainflow DoD,
+//!   Palmgren-Miner damage).
 //! - [`curve`]: the piecewise-linear tables the models share.
 //!
 //! A simulation step calls, in order: [`loads::Loads::total_w`] for the demand,
@@ -18,6 +20,7 @@
 //! I^2 R, then [`pack::Pack::step`] with the net terminal power (loads + heater -
 //! solar) at the box temperature. Nothing here reads files, prints or looks at a clock.
 
+pub mod ageing;
 pub mod ambient;
 pub mod chemistry;
 pub mod curve;
