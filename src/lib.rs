@@ -5,11 +5,13 @@
 //! ```text
 //! DEM file ──► terrain::io (GeoTIFF / 16-bit PNG / ESRI ASCII → Grid<f32>, NaN = no-data)
 //!                 │
-//!                 ▼
 //!          terrain::{slope, roughness, hillshade, horizon}   derived maps
 //!                 │
-//!                 ▼
-//!          plan ─► vehicle ─► sun ─► battery ─► mission ─► report / study   (planned)
+//!          plan (A* over the grid) ◄── vehicle (step cost, attitude, stability)
+//!                 │
+//!          sun (in progress) ─► battery (pack, thermal node, loads)
+//!                 │
+//!          mission ─► report / study   (planned)
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -21,6 +23,24 @@
 //! - [`terrain::hillshade`]: Lambertian shaded relief.
 //! - [`terrain::horizon`]: horizon angles per azimuth sector by convex-hull sweeps.
 //! - [`terrain::synth`]: seeded synthetic demo terrain.
+//! - [`plan::cost`]: what the planner asks of a vehicle (the `StepModel` contract).
+//! - [`plan::tilt`]: pitch and roll from a slope and a heading.
+//! - [`plan::queue`]: the monotone radix heap.
+//! - [`plan::astar`]: exact A* with Johnson's potential, tilt limits, explanations.
+//! - [`plan::route`]: a planned route's profile and summary, legs through waypoints.
+//! - [`vehicle::rover`]: the rover description (keys with units, defaults, ranges).
+//! - [`vehicle::traction`]: grade, rolling and Bekker soft-soil resistance, thrust, slip.
+//! - [`vehicle::powertrain`]: drive efficiency, regeneration, speed law.
+//! - [`vehicle::attitude`]: body pitch and roll from the wheel contact points.
+//! - [`vehicle::stability`]: static tip-over angles and margins.
+//! - [`vehicle::step`]: the cost of one step.
+//! - [`vehicle::plan_model`]: the rover as the planner's step model.
+//! - [`battery::pack`]: Rint pack model with charge limits and exact bookkeeping.
+//! - [`battery::chemistry`]: LFP and NMC presets.
+//! - [`battery::thermal`]: lumped thermal node with thermostat heater.
+//! - [`battery::ambient`]: air temperature from monthly means or a series.
+//! - [`battery::loads`]: named loads and their schedules.
+//! - [`battery::ageing`]: equivalent full cycles and rainflow damage.
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
