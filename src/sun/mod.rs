@@ -1,1 +1,17 @@
-//! Sun position, irradiance, transposition, terrain shading and PV power (in progress).
+//! Sun: where the sun is, how much light reaches a panel, and what the panel makes of it.
+//!
+//! Pipeline, one module per model (each module doc is that model's data sheet):
+//!
+//! - [`position`]: NREL SPA sun position, ΔT, sunrise/transit/sunset with polar days.
+//!
+//! Everything here is pure: values in, values out, no I/O and no clock.
+//!
+//! # Units
+//! Radians for angles, W/m² for irradiance, W for power, °C for temperatures, metres,
+//! hPa for pressure; `DateTime<Utc>` for instants.
+
+pub mod error;
+pub mod position;
+mod spa_tables;
+
+pub use error::SunError;
