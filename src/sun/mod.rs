@@ -3,6 +3,9 @@
 //! Pipeline, one module per model (each module doc is that model's data sheet):
 //!
 //! - [`position`]: NREL SPA sun position, ΔT, sunrise/transit/sunset with polar days.
+//! - [`irradiance`]: extraterrestrial irradiance, air mass, Ineichen-Perez clear sky.
+//! - [`decomposition`]: Erbs split of measured GHI into DNI and DHI.
+//! - [`transposition`]: plane-of-array irradiance (isotropic, Hay-Davies, Perez).
 //!
 //! Everything here is pure: values in, values out, no I/O and no clock.
 //!
@@ -10,8 +13,11 @@
 //! Radians for angles, W/m² for irradiance, W for power, °C for temperatures, metres,
 //! hPa for pressure; `DateTime<Utc>` for instants.
 
+pub mod decomposition;
 pub mod error;
+pub mod irradiance;
 pub mod position;
 mod spa_tables;
+pub mod transposition;
 
 pub use error::SunError;
