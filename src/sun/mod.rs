@@ -6,6 +6,8 @@
 //! - [`irradiance`]: extraterrestrial irradiance, air mass, Ineichen-Perez clear sky.
 //! - [`decomposition`]: Erbs split of measured GHI into DNI and DHI.
 //! - [`transposition`]: plane-of-array irradiance (isotropic, Hay-Davies, Perez).
+//! - [`shading`]: terrain horizon hides the beam; sky-view factor scales the diffuse.
+//! - [`panel`]: panel power with cell temperature (Faiman, NOCT); mounts and attitude.
 //!
 //! Everything here is pure: values in, values out, no I/O and no clock.
 //!
@@ -16,7 +18,9 @@
 pub mod decomposition;
 pub mod error;
 pub mod irradiance;
+pub mod panel;
 pub mod position;
+pub mod shading;
 mod spa_tables;
 pub mod transposition;
 
