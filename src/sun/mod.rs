@@ -7,6 +7,7 @@
 //! - [`decomposition`]: Erbs split of measured GHI into DNI and DHI.
 //! - [`transposition`]: plane-of-array irradiance (isotropic, Hay-Davies, Perez).
 //! - [`shading`]: terrain horizon hides the beam; sky-view factor scales the diffuse.
+//! - [`series`]: clear-sky time series of position, components and POA (parallel).
 //! - [`panel`]: panel power with cell temperature (Faiman, NOCT); mounts and attitude.
 //!
 //! Everything here is pure: values in, values out, no I/O and no clock.
@@ -20,6 +21,7 @@ pub mod error;
 pub mod irradiance;
 pub mod panel;
 pub mod position;
+pub mod series;
 pub mod shading;
 mod spa_tables;
 pub mod transposition;

@@ -97,7 +97,7 @@ impl Plane {
     /// The plane whose unit normal is `n` (east, north, up); `None` for a zero vector.
     pub fn from_normal_enu(n: [f64; 3]) -> Option<Plane> {
         let len = (n[0] * n[0] + n[1] * n[1] + n[2] * n[2]).sqrt();
-        if !(len > 1e-12) {
+        if len.is_nan() || len <= 1e-12 {
             return None;
         }
         let up = (n[2] / len).clamp(-1.0, 1.0);
