@@ -438,7 +438,7 @@ pub fn equation_of_time_min(g: &Geocentric) -> f64 {
     }
 }
 
-/// The slowly varying inputs of the topocentric step: what [`topocentric`] needs from
+/// The slowly varying inputs of the topocentric step: what the topocentric step needs from
 /// [`Geocentric`] besides the sidereal time.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SlowTerms {
