@@ -2,6 +2,7 @@
 
 mod demo;
 mod progress;
+mod sun;
 mod terrain;
 
 use std::path::{Path, PathBuf};
@@ -30,6 +31,8 @@ enum Command {
     /// Inspect and analyse elevation rasters.
     #[command(subcommand)]
     Terrain(terrain::TerrainCommand),
+    /// Sun position and clear-sky irradiance: one instant, one day, or a CSV series.
+    Sun(sun::SunArgs),
 }
 
 /// How to read a DEM: shared by every command that takes one.
@@ -96,6 +99,7 @@ pub fn run(cli: Cli) -> Result<(), Error> {
     match cli.command {
         Command::Demo(a) => demo::run(a),
         Command::Terrain(t) => terrain::run(t),
+        Command::Sun(a) => sun::run(a),
     }
 }
 
