@@ -2,7 +2,9 @@
 
 use std::path::PathBuf;
 
+use crate::plan::PlanError;
 use crate::terrain::TerrainError;
+use crate::vehicle::VehicleError;
 
 /// Anything a sunward command can fail with.
 #[derive(Debug, thiserror::Error)]
@@ -10,6 +12,25 @@ pub enum Error {
     /// Reading or analysing terrain.
     #[error(transparent)]
     Terrain(#[from] TerrainError),
+    /// Planning a route.
+    #[error(transparent)]
+    Plan(#[from] PlanError),
+    /// A rover description.
+    #[error("{path}: {source}")]
+    Rover {
+        /// The rover file (or mission file).
+        path: PathBuf,
+        /// What is wrong in it.
+        source: VehicleError,
+    },
+    /// An input file could not be read.
+    #[error("{path}: reading failed: {source}. Fix: check the path")]
+    Input {
+        /// The file.
+        path: PathBuf,
+        /// The cause.
+        source: std::io::Error,
+    },
     /// Writing an output file.
     #[error("{path}: could not write the output: {source}. Fix: check that the folder exists and is writable")]
     Output {

@@ -9,7 +9,7 @@
 //!                 │
 //!          plan (A* over the grid) ◄── vehicle (step cost, attitude, stability)
 //!                 │
-//!          sun (in progress) ─► battery (pack, thermal node, loads)
+//!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
 //!          mission ─► report / study   (planned)
 //! ```
@@ -35,6 +35,13 @@
 //! - [`vehicle::stability`]: static tip-over angles and margins.
 //! - [`vehicle::step`]: the cost of one step.
 //! - [`vehicle::plan_model`]: the rover as the planner's step model.
+//! - [`sun::position`]: NREL SPA sun position, sunrise, transit, sunset.
+//! - [`sun::irradiance`]: extraterrestrial irradiance, air mass, Ineichen-Perez clear sky.
+//! - [`sun::decomposition`]: Erbs split of GHI into beam and diffuse.
+//! - [`sun::transposition`]: isotropic, Hay-Davies and Perez plane-of-array models.
+//! - [`sun::shading`]: terrain horizon and sky-view factor applied to irradiance.
+//! - [`sun::panel`]: PV power with cell temperature and mounts.
+//! - [`sun::series`]: clear-sky time series.
 //! - [`battery::pack`]: Rint pack model with charge limits and exact bookkeeping.
 //! - [`battery::chemistry`]: LFP and NMC presets.
 //! - [`battery::thermal`]: lumped thermal node with thermostat heater.

@@ -59,23 +59,28 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     let svf = horizon::sky_view_map(&dem, &map);
     write_tif(&out("sky_view.tif"), &dem, &[svf.data()])?;
     let (_, _, svf_mean) = svf.stats().unwrap_or((0.0, 0.0, 1.0));
-    println!("Vardholm plateau demo terrain");
-    println!(
+    crate::say!("Vardholm plateau demo terrain");
+    crate::say!(
         "  {} x {} cells of {:.1} m, elevation {:.1} .. {:.1} m",
-        info.width, info.height, info.cell_size_m, info.z_min_m, info.z_max_m
+        info.width,
+        info.height,
+        info.cell_size_m,
+        info.z_min_m,
+        info.z_max_m
     );
-    println!(
+    crate::say!(
         "  slope mean {:.1} deg, max {:.1} deg",
-        info.slope_mean_deg, info.slope_max_deg
+        info.slope_mean_deg,
+        info.slope_max_deg
     );
-    println!(
+    crate::say!(
         "  mean sky-view factor {svf_mean:.3} over {} horizon sectors",
         map.sectors()
     );
-    println!(
+    crate::say!(
         "outputs in {}: info.json slope.tif roughness.tif hillshade.png horizon.tif sky_view.tif",
         a.out.display()
     );
-    println!("(route planning, solar, battery and mission verdicts are not built yet)");
+    crate::say!("(route planning, solar, battery and mission verdicts are not built yet)");
     Ok(())
 }

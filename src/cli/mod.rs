@@ -2,6 +2,7 @@
 
 mod demo;
 mod progress;
+mod route;
 mod sun;
 mod terrain;
 
@@ -33,13 +34,13 @@ enum Command {
     Terrain(terrain::TerrainCommand),
     /// Sun position and clear-sky irradiance: one instant, one day, or a CSV series.
     Sun(sun::SunArgs),
+    /// Plan a route on a DEM: exact energy-, time- or distance-optimal A* with tilt limits.
+    Route(route::RouteArgs),
 }
 
-/// How to read a DEM: shared by every command that takes one.
+/// How to read a DEM: the flags every command that takes a DEM shares.
 #[derive(Debug, Clone, Args)]
-pub struct DemArgs {
-    /// Elevation raster: GeoTIFF (.tif), 16-bit PNG heightmap (.png) or ESRI ASCII grid (.asc).
-    pub dem: PathBuf,
+pub struct DemOptions {
     /// PNG heightmaps only: cell size in metres.
     #[arg(long, value_name = "M")]
     pub cell_m: Option<f64>,
@@ -57,7 +58,7 @@ pub struct DemArgs {
     pub max_cells: u64,
 }
 
-impl DemArgs {
+impl DemOptions {
     /// Reader options from the flags.
     pub fn read_options(&self) -> ReadOptions {
         ReadOptions {
@@ -71,13 +72,46 @@ impl DemArgs {
         }
     }
 
+    /// Reads a DEM with these options.
+    pub fn load(&self, path: &Path) -> Result<sunward::terrain::Dem, Error> {
+        Ok(sunward::terrain::io::read_dem(path, &self.read_options())?)
+    }
+}
+
+/// A DEM given as the first positional argument, with its reading flags.
+#[derive(Debug, Clone, Args)]
+pub struct DemArgs {
+    /// Elevation raster: GeoTIFF (.tif), 16-bit PNG heightmap (.png) or ESRI ASCII grid (.asc).
+    pub dem: PathBuf,
+    #[command(flatten)]
+    pub opts: DemOptions,
+}
+
+impl DemArgs {
     /// Reads the DEM.
     pub fn load(&self) -> Result<sunward::terrain::Dem, Error> {
-        Ok(sunward::terrain::io::read_dem(
-            &self.dem,
-            &self.read_options(),
-        )?)
+        self.opts.load(&self.dem)
     }
+}
+
+/// Writes a line to standard output. A closed pipe (`sunward ... | head`) ends the
+/// program quietly instead of failing.
+pub fn emit(line: impl std::fmt::Display) {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    if let Err(e) = writeln!(out, "{line}").and_then(|_| out.flush()) {
+        if e.kind() == std::io::ErrorKind::BrokenPipe {
+            std::process::exit(0);
+        }
+    }
+}
+
+/// `println!` through [`emit`].
+#[macro_export]
+macro_rules! say {
+    ($($arg:tt)*) => {
+        $crate::cli::emit(format_args!($($arg)*))
+    };
 }
 
 /// Refuses an output that would overwrite an input, and checks the folder is writable,
@@ -100,6 +134,7 @@ pub fn run(cli: Cli) -> Result<(), Error> {
         Command::Demo(a) => demo::run(a),
         Command::Terrain(t) => terrain::run(t),
         Command::Sun(a) => sun::run(a),
+        Command::Route(a) => route::run(a),
     }
 }
 

@@ -188,7 +188,7 @@ fn instant(a: &SunArgs, t: DateTime<Utc>) -> Result<(), Error> {
     };
     if a.json {
         let text = serde_json::to_string_pretty(&out).map_err(|e| Error::Usage(e.to_string()))?;
-        println!("{text}");
+        crate::say!("{text}");
     } else {
         print_instant(&out, &ev.kind);
     }
@@ -196,25 +196,30 @@ fn instant(a: &SunArgs, t: DateTime<Utc>) -> Result<(), Error> {
 }
 
 fn print_instant(o: &InstantJson, kind: &sunward::sun::position::DayKind) {
-    println!(
+    crate::say!(
         "zenith {:.4} deg (apparent {:.4}), elevation {:.4} deg, azimuth {:.4} deg",
-        o.zenith_deg, o.apparent_zenith_deg, o.elevation_deg, o.azimuth_deg
+        o.zenith_deg,
+        o.apparent_zenith_deg,
+        o.elevation_deg,
+        o.azimuth_deg
     );
-    println!(
+    crate::say!(
         "extraterrestrial {:.1} W/m2, air mass {}",
         o.extraterrestrial_w_m2,
         o.airmass
             .map_or("none (sun down)".into(), |m| format!("{m:.3}"))
     );
-    println!(
+    crate::say!(
         "clear sky: GHI {:.1}, DNI {:.1}, DHI {:.1} W/m2",
-        o.ghi_w_m2, o.dni_w_m2, o.dhi_w_m2
+        o.ghi_w_m2,
+        o.dni_w_m2,
+        o.dhi_w_m2
     );
     if let Some(p) = o.poa_w_m2 {
-        println!("plane of array: {p:.1} W/m2");
+        crate::say!("plane of array: {p:.1} W/m2");
     }
     let show = |t: &Option<String>| t.clone().unwrap_or_else(|| "none".into());
-    println!(
+    crate::say!(
         "day ({kind:?}): sunrise {}, transit {}, sunset {}",
         show(&o.sunrise),
         o.transit,
@@ -244,19 +249,25 @@ fn daily(a: &SunArgs, d: NaiveDate) -> Result<(), Error> {
     let rows = clear_sky_series(&s, start, step, n, n, |_, c| c.to_vec()).map_err(sun_err)?;
     let ev = sun_events(d, &s.observer, delta_t(a));
     let show = |t: Option<DateTime<Utc>>| t.map_or("none".into(), rfc);
-    println!(
+    crate::say!(
         "{d}: {:?}; sunrise {}, transit {}, sunset {}",
         ev.kind,
         show(ev.sunrise),
         rfc(ev.transit),
         show(ev.sunset)
     );
-    println!(
+    crate::say!(
         "{:<21} {:>9} {:>9} {:>8} {:>8} {:>8} {:>8}",
-        "time_utc", "elev_deg", "azim_deg", "ghi_w_m2", "dni_w_m2", "dhi_w_m2", "poa_w_m2"
+        "time_utc",
+        "elev_deg",
+        "azim_deg",
+        "ghi_w_m2",
+        "dni_w_m2",
+        "dhi_w_m2",
+        "poa_w_m2"
     );
     for r in rows.iter().flatten() {
-        println!(
+        crate::say!(
             "{:<21} {:>9.3} {:>9.3} {:>8.1} {:>8.1} {:>8.1} {:>8.1}",
             rfc(r.time),
             90.0 - rad_to_deg(r.sun.apparent_zenith_rad),

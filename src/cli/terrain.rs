@@ -156,22 +156,26 @@ pub fn info_of(path: &Path, dem: &Dem) -> TerrainInfo {
 }
 
 fn print_info(i: &TerrainInfo) {
-    println!("file          {}", i.path);
-    println!("size          {} x {} cells", i.width, i.height);
-    println!("cell size     {:.4} x {:.4} m", i.cell_dx_m, i.cell_dy_m);
-    println!("crs           {}", i.crs);
-    println!(
+    crate::say!("file          {}", i.path);
+    crate::say!("size          {} x {} cells", i.width, i.height);
+    crate::say!("cell size     {:.4} x {:.4} m", i.cell_dx_m, i.cell_dy_m);
+    crate::say!("crs           {}", i.crs);
+    crate::say!(
         "origin        ({}, {}) upper-left corner",
-        i.origin_x, i.origin_y
+        i.origin_x,
+        i.origin_y
     );
-    println!(
+    crate::say!(
         "elevation     {:.2} .. {:.2} m, mean {:.2} m",
-        i.z_min_m, i.z_max_m, i.z_mean_m
+        i.z_min_m,
+        i.z_max_m,
+        i.z_mean_m
     );
-    println!("no-data cells {}", i.nodata_cells);
-    println!(
+    crate::say!("no-data cells {}", i.nodata_cells);
+    crate::say!(
         "slope         mean {:.2} deg, max {:.2} deg",
-        i.slope_mean_deg, i.slope_max_deg
+        i.slope_mean_deg,
+        i.slope_max_deg
     );
 }
 
@@ -211,7 +215,7 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
             let dem = a.dem.load()?;
             let info = info_of(&a.dem.dem, &dem);
             if a.json {
-                println!(
+                crate::say!(
                     "{}",
                     serde_json::to_string_pretty(&info).expect("plain data serialises")
                 );

@@ -4,8 +4,12 @@
 
 pub mod astar;
 pub mod cost;
+pub mod error;
 pub mod queue;
+pub mod route;
 pub mod tilt;
 
 pub use astar::{CellFlags, Connectivity, GridPath, Planner, TiltLimits, Unreachable, Workspace};
 pub use cost::{Blocked, Objective, Step, StepEnergy, StepModel};
+pub use error::PlanError;
+pub use route::{plan_route, ProfileRow, Route, RoutePoint, RouteSummary};

@@ -1,0 +1,317 @@
+//! `sunward route`: plan one route on a DEM and write it as GeoJSON, a profile CSV and
+//! a JSON summary.
+
+use std::path::{Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+use serde_json::{json, Value};
+
+use sunward::plan::{
+    plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
+};
+use sunward::report::atomic::write_atomic;
+use sunward::terrain::{roughness, Dem};
+use sunward::vehicle::Rover;
+use sunward::Error;
+
+use super::{check_output, DemOptions};
+
+/// What the route minimises.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ObjectiveArg {
+    /// Length along the ground.
+    Distance,
+    /// Driving time.
+    Time,
+    /// Battery energy: drive plus hotel over the driving time.
+    Energy,
+}
+
+impl ObjectiveArg {
+    fn objective(self) -> Objective {
+        match self {
+            ObjectiveArg::Distance => Objective::DISTANCE,
+            ObjectiveArg::Time => Objective::TIME,
+            ObjectiveArg::Energy => Objective::ENERGY,
+        }
+    }
+}
+
+/// A map point "X,Y" in the DEM's CRS units.
+fn parse_point(s: &str) -> Result<(f64, f64), String> {
+    let (x, y) = s
+        .split_once(',')
+        .ok_or_else(|| format!("{s:?} is not X,Y (two numbers separated by a comma)"))?;
+    let num = |t: &str| {
+        t.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("{t:?} in {s:?} is not a number"))
+    };
+    Ok((num(x)?, num(y)?))
+}
+
+#[derive(Debug, Args)]
+pub struct RouteArgs {
+    /// Elevation raster (GeoTIFF, PNG heightmap with --cell-m, or ESRI ASCII grid).
+    #[arg(long, value_name = "DEM")]
+    terrain: PathBuf,
+    #[command(flatten)]
+    dem: DemOptions,
+    /// Start, in the DEM's CRS units.
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
+    from: (f64, f64),
+    /// Goal, in the DEM's CRS units.
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
+    to: (f64, f64),
+    /// Waypoints to pass in order (repeat the flag).
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
+    via: Vec<(f64, f64)>,
+    /// Rover description (TOML); without it the documented default rover is used.
+    #[arg(long, value_name = "ROVER.toml")]
+    rover: Option<PathBuf>,
+    /// What the route minimises.
+    #[arg(long, value_enum, default_value_t = ObjectiveArg::Energy)]
+    objective: ObjectiveArg,
+    /// Steepest pitch allowed uphill and downhill, degrees (default: the rover's limits).
+    #[arg(long, value_name = "DEG")]
+    max_pitch_deg: Option<f64>,
+    /// Largest roll allowed, degrees (default: the rover's roll limit).
+    #[arg(long, value_name = "DEG")]
+    max_roll_deg: Option<f64>,
+    /// Block cells whose 3 x 3 elevation range exceeds this, metres.
+    #[arg(long, value_name = "M")]
+    max_roughness_m: Option<f64>,
+    /// Neighbours per cell: 8, or 16 (adds knight moves for smoother headings).
+    #[arg(long, value_name = "N", default_value_t = 8)]
+    connectivity: u8,
+    /// Write the route as a GeoJSON LineString (coordinates in the DEM's CRS).
+    #[arg(long, value_name = "route.geojson")]
+    out: Option<PathBuf>,
+    /// Write the per-step profile as CSV.
+    #[arg(long, value_name = "profile.csv")]
+    profile: Option<PathBuf>,
+    /// Print the summary as JSON (stable keys, see README).
+    #[arg(long)]
+    json: bool,
+}
+
+/// Reads a rover file, or the default rover.
+pub fn load_rover(path: Option<&Path>) -> Result<Rover, Error> {
+    let Some(path) = path else {
+        return Ok(Rover::default());
+    };
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Input {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    Rover::from_toml_str(&text).map_err(|source| Error::Rover {
+        path: path.to_path_buf(),
+        source,
+    })
+}
+
+/// The rover's keys as JSON (what `--json` prints under `rover`).
+pub fn rover_json(r: &Rover) -> Value {
+    json!({
+        "mass_kg": r.mass_kg,
+        "payload_kg": r.payload_kg,
+        "rolling_resistance": r.rolling_resistance,
+        "soil": r.soil.map(|s| s.name),
+        "drive_efficiency": r.drive_efficiency,
+        "regen_fraction": r.regen_fraction,
+        "hotel_power_w": r.hotel_power_w,
+        "max_speed_m_s": r.max_speed_m_s,
+        "wheel_count": r.wheel_count,
+        "wheel_radius_m": r.wheel_radius_m,
+        "wheel_width_m": r.wheel_width_m,
+        "wheelbase_m": r.wheelbase_m,
+        "track_m": r.track_m,
+        "cg_height_m": r.cg_height_m,
+        "max_climb_deg": r.max_climb_rad.to_degrees(),
+        "max_descent_deg": r.max_descent_rad.to_degrees(),
+        "max_roll_deg": r.roll_limit_rad().to_degrees(),
+    })
+}
+
+fn check_deg(name: &str, v: f64) -> Result<f64, Error> {
+    if v.is_finite() && v > 0.0 && v < 90.0 {
+        Ok(v.to_radians())
+    } else {
+        Err(Error::Usage(format!(
+            "{name} = {v} is out of range: expected more than 0 and less than 90 degrees"
+        )))
+    }
+}
+
+fn limits(a: &RouteArgs, rover: &Rover) -> Result<TiltLimits, Error> {
+    let mut l = TiltLimits {
+        max_pitch_up_rad: rover.max_climb_rad,
+        max_pitch_down_rad: rover.max_descent_rad,
+        max_roll_rad: rover.roll_limit_rad(),
+    };
+    if let Some(p) = a.max_pitch_deg {
+        l.max_pitch_up_rad = check_deg("--max-pitch-deg", p)?;
+        l.max_pitch_down_rad = l.max_pitch_up_rad;
+    }
+    if let Some(r) = a.max_roll_deg {
+        l.max_roll_rad = check_deg("--max-roll-deg", r)?;
+    }
+    Ok(l)
+}
+
+fn cell_flags(dem: &Dem, max_roughness_m: Option<f64>) -> Result<CellFlags, Error> {
+    let mut flags = CellFlags::from_dem(dem);
+    if let Some(max) = max_roughness_m {
+        if !(max.is_finite() && max > 0.0) {
+            return Err(Error::Usage(format!(
+                "--max-roughness-m = {max} is out of range: expected a positive number of metres"
+            )));
+        }
+        for (i, r) in roughness::roughness_map(dem).data().iter().enumerate() {
+            if *r as f64 > max {
+                flags.block(i, Blocked::Roughness);
+            }
+        }
+    }
+    Ok(flags)
+}
+
+/// The `--json` document: the stable keys first, then context.
+pub fn summary_json(route: &Route, objective: Objective, rover: &Rover, l: &TiltLimits) -> Value {
+    let s = &route.summary;
+    json!({
+        "length_m": s.length_m,
+        "energy_wh": sunward::units::j_to_wh(s.energy_j),
+        "duration_s": s.duration_s,
+        "max_pitch_deg": s.max_pitch_rad.to_degrees(),
+        "max_roll_deg": s.max_roll_rad.to_degrees(),
+        "expanded_nodes": s.expanded_nodes,
+        "objective": objective.name(),
+        "cells": route.cells(),
+        "cost": s.cost,
+        "limits": {
+            "max_pitch_up_deg": l.max_pitch_up_rad.to_degrees(),
+            "max_pitch_down_deg": l.max_pitch_down_rad.to_degrees(),
+            "max_roll_deg": l.max_roll_rad.to_degrees(),
+        },
+        "rover": rover_json(rover),
+    })
+}
+
+/// The route as a GeoJSON Feature (a LineString with x, y, z in the DEM's CRS).
+pub fn route_geojson(route: &Route, summary: &Value) -> Value {
+    let coords: Vec<[f64; 3]> = route.profile.iter().map(|p| [p.x, p.y, p.z_m]).collect();
+    let mut props = summary.clone();
+    if let Some(m) = props.as_object_mut() {
+        m.remove("cells");
+    }
+    json!({
+        "type": "FeatureCollection",
+        "features": [{
+            "type": "Feature",
+            "geometry": {"type": "LineString", "coordinates": coords},
+            "properties": props,
+        }],
+    })
+}
+
+/// The profile as CSV text, units in the headers.
+pub fn profile_csv(route: &Route) -> String {
+    let mut out = String::from(
+        "distance_m,x,y,z_m,pitch_deg,roll_deg,heading_deg,step_energy_wh,step_time_s,col,row\n",
+    );
+    for p in &route.profile {
+        out.push_str(&format!(
+            "{:.3},{:.3},{:.3},{:.3},{:.3},{:.3},{:.2},{:.6},{:.3},{},{}\n",
+            p.distance_m,
+            p.x,
+            p.y,
+            p.z_m,
+            p.pitch_rad.to_degrees(),
+            p.roll_rad.to_degrees(),
+            p.heading_rad.to_degrees(),
+            sunward::units::j_to_wh(p.step_energy_j),
+            p.step_time_s,
+            p.col,
+            p.row
+        ));
+    }
+    out
+}
+
+pub fn run(a: RouteArgs) -> Result<(), Error> {
+    let connectivity = match a.connectivity {
+        8 => Connectivity::Eight,
+        16 => Connectivity::Sixteen,
+        n => {
+            return Err(Error::Usage(format!(
+                "--connectivity {n}: expected 8 or 16"
+            )))
+        }
+    };
+    for out in a.out.iter().chain(a.profile.iter()) {
+        check_output(out, &[&a.terrain])?;
+    }
+    let rover = load_rover(a.rover.as_deref())?;
+    let limits = limits(&a, &rover)?;
+    let dem = a.dem.load(&a.terrain)?;
+    let flags = cell_flags(&dem, a.max_roughness_m)?;
+    let objective = a.objective.objective();
+    let planner = Planner {
+        dem: &dem,
+        flags: &flags,
+        model: &rover,
+        limits,
+        connectivity,
+        objective,
+    };
+    let mut points = vec![RoutePoint {
+        label: "start".into(),
+        x: a.from.0,
+        y: a.from.1,
+    }];
+    for (i, v) in a.via.iter().enumerate() {
+        points.push(RoutePoint {
+            label: format!("waypoint {}", i + 1),
+            x: v.0,
+            y: v.1,
+        });
+    }
+    points.push(RoutePoint {
+        label: "goal".into(),
+        x: a.to.0,
+        y: a.to.1,
+    });
+    let route = plan_route(&planner, &points)?;
+    let summary = summary_json(&route, objective, &rover, &limits);
+    if let Some(out) = &a.out {
+        let text =
+            serde_json::to_string(&route_geojson(&route, &summary)).expect("JSON values serialise");
+        write_atomic(out, |w| w.write_all(text.as_bytes()))?;
+    }
+    if let Some(out) = &a.profile {
+        let text = profile_csv(&route);
+        write_atomic(out, |w| w.write_all(text.as_bytes()))?;
+    }
+    if a.json {
+        crate::say!(
+            "{}",
+            serde_json::to_string(&summary).expect("JSON values serialise")
+        );
+    } else {
+        let s = &route.summary;
+        crate::say!(
+            "route: {:.1} m along the ground, {:.1} Wh, {:.0} s driving, max pitch {:.1} deg, max roll {:.1} deg ({} objective, {} cells expanded)",
+            s.length_m,
+            sunward::units::j_to_wh(s.energy_j),
+            s.duration_s,
+            s.max_pitch_rad.to_degrees(),
+            s.max_roll_rad.to_degrees(),
+            objective.name(),
+            s.expanded_nodes
+        );
+    }
+    Ok(())
+}

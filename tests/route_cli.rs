@@ -1,0 +1,184 @@
+//! `sunward route` as a black box: the stable JSON keys, outputs that agree with each
+//! other, and clear errors (exit code 2) for points outside the grid, unreachable goals
+//! and bad rover files.
+
+use std::path::PathBuf;
+
+use assert_cmd::Command;
+use serde_json::Value;
+
+fn terrain() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("terrains/vardholm_plateau.tif")
+}
+
+fn route(args: &[&str]) -> std::process::Output {
+    Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("route")
+        .arg("--terrain")
+        .arg(terrain())
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+#[test]
+fn json_geojson_and_profile_agree() {
+    let dir = tempfile::tempdir().unwrap();
+    let gj = dir.path().join("route.geojson");
+    let csv = dir.path().join("profile.csv");
+    let out = route(&[
+        "--from",
+        "300,300",
+        "--to",
+        "1500,1200",
+        "--via",
+        "900,600",
+        "--json",
+        "--out",
+        gj.to_str().unwrap(),
+        "--profile",
+        csv.to_str().unwrap(),
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let keys = [
+        "length_m",
+        "energy_wh",
+        "duration_s",
+        "max_pitch_deg",
+        "max_roll_deg",
+        "expanded_nodes",
+        "objective",
+        "cells",
+    ];
+    for k in keys {
+        assert!(v.get(k).is_some(), "missing {k}");
+    }
+    assert_eq!(v["objective"], "energy");
+    assert_eq!(v["rover"]["mass_kg"], 120.0, "default rover printed");
+    let cells = v["cells"].as_array().unwrap();
+    // Start and goal cells: map (300, 300) on 4 m cells with the origin at (0, 2048).
+    assert_eq!(cells[0], serde_json::json!([75, 437]));
+    assert_eq!(cells[cells.len() - 1], serde_json::json!([375, 212]));
+    assert!(
+        cells.contains(&serde_json::json!([225, 362])),
+        "the waypoint's cell is on the route"
+    );
+
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let rows: Vec<Vec<f64>> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').map(|x| x.parse().unwrap()).collect())
+        .collect();
+    assert_eq!(rows.len(), cells.len());
+    let energy: f64 = rows.iter().map(|r| r[7]).sum();
+    let time: f64 = rows.iter().map(|r| r[8]).sum();
+    // Each CSV row rounds its energy to 1e-6 Wh.
+    assert!((energy - v["energy_wh"].as_f64().unwrap()).abs() < 1e-6 * rows.len() as f64);
+    assert!((time - v["duration_s"].as_f64().unwrap()).abs() < 1e-2);
+    assert!((rows.last().unwrap()[0] - v["length_m"].as_f64().unwrap()).abs() < 1e-2);
+    let max_pitch = rows.iter().map(|r| r[4].abs()).fold(0.0, f64::max);
+    assert!(max_pitch <= 20.0 + 1e-3, "pitch {max_pitch}");
+
+    let g: Value = serde_json::from_str(&std::fs::read_to_string(&gj).unwrap()).unwrap();
+    let f = &g["features"][0];
+    assert_eq!(f["geometry"]["type"], "LineString");
+    assert_eq!(
+        f["geometry"]["coordinates"].as_array().unwrap().len(),
+        cells.len()
+    );
+    assert_eq!(f["properties"]["length_m"], v["length_m"]);
+}
+
+#[test]
+fn objectives_order_their_own_measure() {
+    let run = |o: &str| -> Value {
+        let out = route(&[
+            "--from",
+            "200,1800",
+            "--to",
+            "1800,300",
+            "--json",
+            "--objective",
+            o,
+        ]);
+        assert!(out.status.success());
+        serde_json::from_slice(&out.stdout).unwrap()
+    };
+    let (d, t, e) = (run("distance"), run("time"), run("energy"));
+    let f = |v: &Value, k: &str| v[k].as_f64().unwrap();
+    assert!(
+        f(&d, "length_m") <= f(&t, "length_m") + 1e-6
+            && f(&d, "length_m") <= f(&e, "length_m") + 1e-6
+    );
+    assert!(
+        f(&t, "duration_s") <= f(&d, "duration_s") + 1e-6
+            && f(&t, "duration_s") <= f(&e, "duration_s") + 1e-6
+    );
+    assert!(
+        f(&e, "energy_wh") <= f(&d, "energy_wh") + 1e-9
+            && f(&e, "energy_wh") <= f(&t, "energy_wh") + 1e-9
+    );
+}
+
+#[test]
+fn bad_points_limits_and_rovers_are_refused_with_exit_code_2() {
+    let check = |args: &[&str], needle: &str| {
+        let out = route(args);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{err}");
+        assert!(err.contains(needle), "expected {needle:?} in {err}");
+        assert!(!err.contains("panicked"));
+    };
+    check(
+        &["--from", "-5,100", "--to", "1900,1900"],
+        "the start (-5, 100) lies outside the terrain",
+    );
+    check(
+        &["--from", "100,100", "--to", "1900,3000"],
+        "the goal (1900, 3000) lies outside",
+    );
+    check(
+        &[
+            "--from",
+            "100,100",
+            "--to",
+            "1900,1900",
+            "--max-pitch-deg",
+            "3",
+        ],
+        "the way is closed by the uphill pitch limit",
+    );
+    check(
+        &[
+            "--from",
+            "100,100",
+            "--to",
+            "1900,1900",
+            "--max-pitch-deg",
+            "95",
+        ],
+        "--max-pitch-deg = 95 is out of range",
+    );
+    check(&["--from", "100;100", "--to", "1900,1900"], "is not X,Y");
+    let dir = tempfile::tempdir().unwrap();
+    let rover = dir.path().join("rover.toml");
+    std::fs::write(&rover, "mass_kg = -3\n").unwrap();
+    check(
+        &[
+            "--from",
+            "100,100",
+            "--to",
+            "1900,1900",
+            "--rover",
+            rover.to_str().unwrap(),
+        ],
+        "mass_kg",
+    );
+}
