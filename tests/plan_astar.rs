@@ -44,7 +44,7 @@ impl TestRover {
 impl StepModel for TestRover {
     fn step(&self, s: &Step) -> Result<StepEnergy, Blocked> {
         let w = self.mass_kg * G * (self.crr * s.d_m + s.dz_m);
-        let v = self.v_max * (1.0 - 0.6 * (s.pitch_rad.abs() / 25f64.to_radians()).min(1.0));
+        let v = self.v_max * (1.0 - 0.6 * (s.pitch_rad().abs() / 25f64.to_radians()).min(1.0));
         let t = s.d_m.hypot(s.dz_m) / v;
         Ok(StepEnergy {
             energy_j: self.wheel_energy(w) + self.hotel_w * t,
@@ -307,7 +307,7 @@ fn routes_keep_every_constraint() {
                 .position(|&o| o == (dc as i32, dr as i32))
                 .unwrap();
             let s = p.geometry(pair[0], dir).unwrap();
-            assert!(s.roll_rad.abs() <= limits.max_roll_rad);
+            assert!(s.roll_rad().abs() <= limits.max_roll_rad + 1e-12);
         }
     }
 }
@@ -417,14 +417,12 @@ fn check_contract<M: StepModel>(m: &M, seed: u64) -> usize {
     for _ in 0..10_000 {
         let d = 0.5 + 5.0 * rng.next_f64();
         let dz = (rng.next_f64() - 0.5) * 2.0;
-        let pitch = (dz / d).atan();
-        let roll = (rng.next_f64() - 0.5) * 0.3;
         let s = Step {
             d_m: d,
             dz_m: dz,
             heading_rad: 0.0,
-            pitch_rad: pitch,
-            roll_rad: roll,
+            slope: dz / d,
+            cross_slope: (rng.next_f64() - 0.5) * 0.3,
             from: 0,
             to: 1,
         };
@@ -454,9 +452,14 @@ fn test_rover_keeps_the_model_contract() {
 /// as the reference Dijkstra.
 #[test]
 fn vehicle_rover_keeps_the_model_contract_and_plans_exactly() {
+    use sunward::vehicle::plan_model::RoverStepModel;
     use sunward::vehicle::Rover;
-    let firm = Rover::from_toml_str("regen_fraction = 0.5\nmax_roll_deg = 30\n").unwrap();
-    let sand = Rover::from_toml_str("soil = \"sandy-loam\"\n").unwrap();
+    let firm_rover = Rover::from_toml_str("regen_fraction = 0.5\nmax_roll_deg = 30\n").unwrap();
+    let sand_rover = Rover::from_toml_str("soil = \"sandy-loam\"\n").unwrap();
+    let (firm, sand) = (
+        RoverStepModel::new(&firm_rover),
+        RoverStepModel::new(&sand_rover),
+    );
     assert!(check_contract(&firm, 4) > 5_000);
     assert!(check_contract(&sand, 5) > 1_000);
     let mut rng = SplitMix64::new(99);

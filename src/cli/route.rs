@@ -11,6 +11,7 @@ use sunward::plan::{
 };
 use sunward::report::atomic::write_atomic;
 use sunward::terrain::{roughness, Dem};
+use sunward::vehicle::plan_model::RoverStepModel;
 use sunward::vehicle::Rover;
 use sunward::Error;
 
@@ -77,7 +78,8 @@ pub struct RouteArgs {
     /// Steepest pitch allowed uphill and downhill, degrees (default: the rover's limits).
     #[arg(long, value_name = "DEG")]
     max_pitch_deg: Option<f64>,
-    /// Largest roll allowed, degrees (default: the rover's roll limit).
+    /// Largest roll allowed, degrees (default: the rover's roll limit; always capped at
+    /// the rover's roll_stability_fraction of its sideways tip-over angle).
     #[arg(long, value_name = "DEG")]
     max_roll_deg: Option<f64>,
     /// Block cells whose 3 x 3 elevation range exceeds this, metres.
@@ -145,20 +147,22 @@ fn check_deg(name: &str, v: f64) -> Result<f64, Error> {
     }
 }
 
-fn limits(a: &RouteArgs, rover: &Rover) -> Result<TiltLimits, Error> {
-    let mut l = TiltLimits {
+/// Applies the tilt flags to the rover (they override its file's limits; the roll limit
+/// stays capped by the rover's stability fraction of its tip-over angle) and returns the
+/// planner's limits, which are the rover's.
+fn apply_limits(a: &RouteArgs, rover: &mut Rover) -> Result<TiltLimits, Error> {
+    if let Some(p) = a.max_pitch_deg {
+        rover.max_climb_rad = check_deg("--max-pitch-deg", p)?;
+        rover.max_descent_rad = rover.max_climb_rad;
+    }
+    if let Some(r) = a.max_roll_deg {
+        rover.max_roll_rad = check_deg("--max-roll-deg", r)?;
+    }
+    Ok(TiltLimits {
         max_pitch_up_rad: rover.max_climb_rad,
         max_pitch_down_rad: rover.max_descent_rad,
         max_roll_rad: rover.roll_limit_rad(),
-    };
-    if let Some(p) = a.max_pitch_deg {
-        l.max_pitch_up_rad = check_deg("--max-pitch-deg", p)?;
-        l.max_pitch_down_rad = l.max_pitch_up_rad;
-    }
-    if let Some(r) = a.max_roll_deg {
-        l.max_roll_rad = check_deg("--max-roll-deg", r)?;
-    }
-    Ok(l)
+    })
 }
 
 fn cell_flags(dem: &Dem, max_roughness_m: Option<f64>) -> Result<CellFlags, Error> {
@@ -254,15 +258,15 @@ pub fn run(a: RouteArgs) -> Result<(), Error> {
     for out in a.out.iter().chain(a.profile.iter()) {
         check_output(out, &[&a.terrain])?;
     }
-    let rover = load_rover(a.rover.as_deref())?;
-    let limits = limits(&a, &rover)?;
+    let mut rover = load_rover(a.rover.as_deref())?;
+    let limits = apply_limits(&a, &mut rover)?;
     let dem = a.dem.load(&a.terrain)?;
     let flags = cell_flags(&dem, a.max_roughness_m)?;
     let objective = a.objective.objective();
     let planner = Planner {
         dem: &dem,
         flags: &flags,
-        model: &rover,
+        model: &RoverStepModel::new(&rover),
         limits,
         connectivity,
         objective,

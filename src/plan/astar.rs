@@ -37,7 +37,6 @@
 
 use crate::plan::cost::{Blocked, Objective, Step, StepModel};
 use crate::plan::queue::RadixHeap;
-use crate::plan::tilt::pitch_roll_from_slopes;
 use crate::terrain::Dem;
 
 /// How many neighbours a cell has.
@@ -212,7 +211,8 @@ struct DirInfo {
     /// heading (metres, right minus left), and the (dc, dr) offsets for edge checks.
     flanks: [[(i32, i32); 2]; 2],
     flank_delta: [[isize; 2]; 2],
-    flank_sep: [f64; 2],
+    /// 1 / separation (0 where the pair has no width across the heading).
+    flank_inv_sep: [f64; 2],
     /// Diagonal and knight steps need their flanking cells free.
     needs_free_flanks: bool,
 }
@@ -227,10 +227,15 @@ fn dir_table(dem: &Dem) -> [DirInfo; 16] {
         let (hx, hy) = (ex / d, ny / d);
         let flanks = flank_cells(dc, dr);
         let flank_delta = flanks.map(|pair| pair.map(|(c, r)| r as isize * w + c as isize));
-        let flank_sep = flanks.map(|pair| {
+        let flank_inv_sep = flanks.map(|pair| {
             let sx = (pair[1].0 - pair[0].0) as f64 * cs.dx_m;
             let sy = -((pair[1].1 - pair[0].1) as f64) * cs.dy_m;
-            sx * hy - sy * hx
+            let sep = sx * hy - sy * hx;
+            if sep.abs() > 1e-9 {
+                1.0 / sep
+            } else {
+                0.0
+            }
         });
         DirInfo {
             dc: dc as i64,
@@ -240,10 +245,28 @@ fn dir_table(dem: &Dem) -> [DirInfo; 16] {
             heading_rad: crate::units::wrap_azimuth_rad(ex.atan2(ny)),
             flanks,
             flank_delta,
-            flank_sep,
+            flank_inv_sep,
             needs_free_flanks: dc.abs() + dr.abs() > 1,
         }
     })
+}
+
+/// Tilt limits as tangents, for comparisons without trigonometry in the hot loop.
+#[derive(Debug, Clone, Copy)]
+struct TanLimits {
+    up: f64,
+    down: f64,
+    roll_sq: f64,
+}
+
+impl TanLimits {
+    fn of(l: &TiltLimits) -> TanLimits {
+        TanLimits {
+            up: l.max_pitch_up_rad.tan(),
+            down: l.max_pitch_down_rad.tan(),
+            roll_sq: l.max_roll_rad.tan().powi(2),
+        }
+    }
 }
 
 /// The cell a search is expanding: its index, column, row and whether every cell within
@@ -290,7 +313,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// blocks and the tilt limits (not yet against the vehicle).
     pub fn geometry(&self, from: usize, dir: usize) -> Result<Step, Blocked> {
         let table = dir_table(self.dem);
-        self.step_geometry(self.at(from), &table[dir])
+        self.step_geometry(self.at(from), &table[dir], &TanLimits::of(&self.limits))
     }
 
     /// Row-major index of (col + dc, row + dr), or None outside the grid.
@@ -305,10 +328,16 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     #[inline]
-    fn step_geometry(&self, at: At, di: &DirInfo) -> Result<Step, Blocked> {
+    fn step_geometry(&self, at: At, di: &DirInfo, tan: &TanLimits) -> Result<Step, Blocked> {
         let to = self
             .offset(at, di.dc, di.dr, di.delta)
             .ok_or(Blocked::GridEdge)?;
+        self.step_to(at, di, to, tan)
+    }
+
+    /// [`Self::step_geometry`] with the target cell already known to be in the grid.
+    #[inline]
+    fn step_to(&self, at: At, di: &DirInfo, to: usize, tan: &TanLimits) -> Result<Step, Blocked> {
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
@@ -327,24 +356,24 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         }
         let dz = self.z(to) - self.z(at.cell);
         let s = dz / di.d_m;
-        let pitch = s.atan();
-        if pitch > self.limits.max_pitch_up_rad {
+        // Limits compared as tangents: atan is monotone, so s > tan(limit) ⇔ pitch > limit,
+        // and |roll| > limit ⇔ t² > tan²(limit)·(1 + s²) (plan::tilt).
+        if s > tan.up {
             return Err(Blocked::PitchUp);
         }
-        if -pitch > self.limits.max_pitch_down_rad {
+        if -s > tan.down {
             return Err(Blocked::PitchDown);
         }
-        let t = self.cross_slope(&flank, &di.flank_sep);
-        let (_, roll) = pitch_roll_from_slopes(s, t);
-        if roll.abs() > self.limits.max_roll_rad {
+        let t = self.cross_slope(&flank, &di.flank_inv_sep);
+        if t * t > tan.roll_sq * (1.0 + s * s) {
             return Err(Blocked::Roll);
         }
         Ok(Step {
             d_m: di.d_m,
             dz_m: dz,
             heading_rad: di.heading_rad,
-            pitch_rad: pitch,
-            roll_rad: roll,
+            slope: s,
+            cross_slope: t,
             from: at.cell,
             to,
         })
@@ -353,17 +382,17 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// Cross slope t = (z_right − z_left) / separation across the heading, averaged over
     /// the flank pairs with data (0 when none has data).
     #[inline]
-    fn cross_slope(&self, flank: &[[Option<usize>; 2]; 2], sep: &[f64; 2]) -> f64 {
+    fn cross_slope(&self, flank: &[[Option<usize>; 2]; 2], inv_sep: &[f64; 2]) -> f64 {
         let (mut sum, mut n) = (0.0, 0);
-        for (pair, &sp) in flank.iter().zip(sep) {
+        for (pair, &inv) in flank.iter().zip(inv_sep) {
             let (Some(l), Some(r)) = (pair[0], pair[1]) else {
                 continue;
             };
             let (zl, zr) = (self.z(l), self.z(r));
-            if zl.is_nan() || zr.is_nan() || sp.abs() < 1e-9 {
+            if zl.is_nan() || zr.is_nan() || inv == 0.0 {
                 continue;
             }
-            sum += (zr - zl) / sp;
+            sum += (zr - zl) * inv;
             n += 1;
         }
         if n == 0 {
@@ -388,6 +417,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         ws.heap.clear();
         let table = dir_table(self.dem);
         let table = &table[..self.connectivity.count()];
+        let tan = TanLimits::of(&self.limits);
+        let per_m = self.objective.per_m != 0.0;
         let k = self.objective.potential_per_m(self.model);
         let z_goal = self.z(goal);
         let cs = self.dem.cell_size();
@@ -397,7 +428,9 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             let dx = ((v % w) as f64 - gc) * cs.dx_m;
             let dy = ((v / w) as f64 - gr) * cs.dy_m;
             let dz = z_goal - self.z(v);
-            let b = self.objective.lower_bound(self.model, dx.hypot(dy), dz);
+            let b = self
+                .objective
+                .lower_bound(self.model, (dx * dx + dy * dy).sqrt(), dz);
             (b - k * dz).max(0.0)
         };
         ws.g[start] = 0.0;
@@ -422,13 +455,13 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 if ws.state[v] & CLOSED != 0 {
                     continue;
                 }
-                let Ok(step) = self.step_geometry(at, di) else {
+                let Ok(step) = self.step_to(at, di, v, &tan) else {
                     continue;
                 };
                 let Ok(e) = self.model.step(&step) else {
                     continue;
                 };
-                let len = step.d_m.hypot(step.dz_m);
+                let len = if per_m { step.length_m() } else { 0.0 };
                 let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
                 let gv = gu + reduced;
                 if gv < ws.g[v] {
@@ -465,6 +498,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut nearest = (usize::MAX, f64::INFINITY);
         let mut reached = 0;
         let table = dir_table(self.dem);
+        let tan = TanLimits::of(&self.limits);
         for u in (0..self.dem.len()).filter(|&u| ws.state[u] & CLOSED != 0) {
             reached += 1;
             let d = self.distance_m(u, goal);
@@ -473,7 +507,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             }
             let at = self.at(u);
             for di in &table[..self.connectivity.count()] {
-                let why = match self.step_geometry(at, di) {
+                let why = match self.step_geometry(at, di, &tan) {
                     Err(b) => b,
                     Ok(step) if ws.state[step.to] & CLOSED == 0 => match self.model.step(&step) {
                         Err(b) => b,

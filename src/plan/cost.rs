@@ -30,14 +30,34 @@ pub struct Step {
     pub dz_m: f64,
     /// Heading, radians clockwise from north.
     pub heading_rad: f64,
-    /// Body pitch, radians (+ nose up), from the step's own rise.
-    pub pitch_rad: f64,
-    /// Body roll, radians (+ left side up), from the terrain beside the step.
-    pub roll_rad: f64,
+    /// Along-track slope s = dz/d = tan(pitch), m/m (+ uphill).
+    pub slope: f64,
+    /// Cross slope t, m/m: rise of the terrain to the right of the heading per metre.
+    pub cross_slope: f64,
     /// Row-major index of the cell the step starts in.
     pub from: usize,
     /// Row-major index of the cell the step ends in.
     pub to: usize,
+}
+
+impl Step {
+    /// Body pitch, radians (+ nose up): atan(s) ([`crate::plan::tilt`]).
+    #[inline]
+    pub fn pitch_rad(&self) -> f64 {
+        self.slope.atan()
+    }
+
+    /// Body roll, radians (+ left side up): −atan(t/√(1 + s²)) ([`crate::plan::tilt`]).
+    #[inline]
+    pub fn roll_rad(&self) -> f64 {
+        crate::plan::tilt::pitch_roll_from_slopes(self.slope, self.cross_slope).1
+    }
+
+    /// Length along the ground, metres.
+    #[inline]
+    pub fn length_m(&self) -> f64 {
+        (self.d_m * self.d_m + self.dz_m * self.dz_m).sqrt()
+    }
 }
 
 /// Energy and time of a step the vehicle can drive.
@@ -166,7 +186,7 @@ impl Objective {
     /// Admissible, consistent lower bound of the cost of a displacement.
     #[inline]
     pub fn lower_bound<M: StepModel + ?Sized>(&self, m: &M, d_m: f64, dz_m: f64) -> f64 {
-        let mut b = self.per_m * d_m.hypot(dz_m);
+        let mut b = self.per_m * (d_m * d_m + dz_m * dz_m).sqrt();
         if self.per_s > 0.0 {
             b += self.per_s * m.time_lower_bound_s(d_m, dz_m);
         }

@@ -198,14 +198,14 @@ fn profile<M: StepModel + ?Sized>(
             .geometry(pair[0], dir)
             .expect("a planned step is drivable");
         let e = p.model.step(&step).expect("a planned step is drivable");
-        s.length_m += step.d_m.hypot(step.dz_m);
+        s.length_m += step.length_m();
         s.energy_j += e.energy_j;
         s.duration_s += e.time_s;
-        s.max_pitch_rad = s.max_pitch_rad.max(step.pitch_rad.abs());
-        s.max_roll_rad = s.max_roll_rad.max(step.roll_rad.abs());
+        s.max_pitch_rad = s.max_pitch_rad.max(step.pitch_rad().abs());
+        s.max_roll_rad = s.max_roll_rad.max(step.roll_rad().abs());
         let info = (
-            step.pitch_rad,
-            step.roll_rad,
+            step.pitch_rad(),
+            step.roll_rad(),
             step.heading_rad,
             e.energy_j,
             e.time_s,
