@@ -182,3 +182,38 @@ fn bad_points_limits_and_rovers_are_refused_with_exit_code_2() {
         "mass_kg",
     );
 }
+
+/// Soft soil closes a climb that firm ground allows, and the planner says so: on a plane
+/// rising 8° to the north, the demo rover on firm ground drives up; on dry sand the
+/// needed thrust exceeds what the soil gives (the vehicle model's traction limit,
+/// from about 5° for this rover) and the message names the traction limit.
+#[test]
+fn traction_limit_closes_a_sandy_climb() {
+    let dir = tempfile::tempdir().unwrap();
+    let dem = dir.path().join("ramp.asc");
+    let (n, cell) = (40usize, 2.0f64);
+    let mut text = format!("ncols {n}\nnrows {n}\nxllcorner 0\nyllcorner 0\ncellsize {cell}\n");
+    for r in 0..n {
+        let z = (n - 1 - r) as f64 * cell * 8f64.to_radians().tan();
+        text.push_str(&vec![format!("{z:.4}"); n].join(" "));
+        text.push('\n');
+    }
+    std::fs::write(&dem, text).unwrap();
+    let sand = dir.path().join("sand.toml");
+    std::fs::write(&sand, "soil = \"dry-sand\"\n").unwrap();
+    let run = |extra: &[&str]| {
+        Command::cargo_bin("sunward")
+            .unwrap()
+            .args(["route", "--terrain"])
+            .arg(&dem)
+            .args(["--from", "40,5", "--to", "40,75"])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    assert!(run(&[]).status.success());
+    let out = run(&["--rover", sand.to_str().unwrap()]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("the way is closed by the traction limit"), "{err}");
+}

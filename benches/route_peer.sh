@@ -1,0 +1,62 @@
+#!/usr/bin/env bash
+# Route planner against a general-purpose peer: scikit-image's route_through_array
+# (fully connected, geometric) on the same 4096 x 4096 synthetic terrain (1 m cells),
+# with a slope cost and the same 25 degree cut, both as whole processes from the file on
+# disk. Prints both times, the ratio, and sunward's peak memory per cell.
+#
+# The peer is installed here, in a venv under target/, never as a project dependency.
+# Usage: bash benches/route_peer.sh [SIZE]      (default 4096)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+SIZE=${1:-4096}
+WORK=target/route-peer
+VENV=$WORK/venv
+mkdir -p "$WORK"
+if [ ! -x "$VENV/bin/python" ]; then
+    python3 -m venv "$VENV"
+    "$VENV/bin/pip" install -q scikit-image tifffile numpy
+fi
+cargo build --release -q
+BIN=target/release/sunward
+DEM=$WORK/synth$SIZE.tif
+[ -f "$DEM" ] || "$BIN" terrain synth --size "$SIZE" --cell-m 1 --seed 4 -o "$DEM" 2>/dev/null
+cat > "$WORK/rover.toml" <<'TOML'
+# The default rover with 25 degree limits on pitch and roll and no extra roll cap.
+max_climb_deg = 25
+max_descent_deg = 25
+max_roll_deg = 25
+roll_stability_fraction = 1.0
+TOML
+cat > "$WORK/peer.py" <<'PY'
+import sys, time
+import numpy as np, tifffile
+from skimage.graph import route_through_array
+t0 = time.perf_counter()
+z = tifffile.imread(sys.argv[1]).astype(np.float64)
+gy, gx = np.gradient(z, 1.0)              # 1 m cells
+slope = np.degrees(np.arctan(np.hypot(gx, gy)))
+cost = 1.0 + np.tan(np.radians(np.minimum(slope, 89.0)))
+cost[slope > 25.0] = np.inf               # the same 25 degree cut
+n = z.shape[0]
+path, total = route_through_array(cost, (n - 1, 0), (0, n - 1), fully_connected=True, geometric=True)
+print(f"peer: {len(path)} cells, cost {total:.1f}, {time.perf_counter() - t0:.2f} s inside python")
+PY
+EXTENT=$((SIZE))
+FROM="0.5,0.5"
+TO="$((EXTENT - 1)).5,$((EXTENT - 1)).5"
+echo "== scikit-image route_through_array, $SIZE x $SIZE"
+PEER_T=$( { /usr/bin/time -f "%e" "$VENV/bin/python" "$WORK/peer.py" "$DEM" >&2; } 2>&1 | tail -1 )
+echo "peer wall time: $PEER_T s"
+echo "== sunward route, $SIZE x $SIZE, energy objective"
+OUT=$( { /usr/bin/time -f "%e %M" "$BIN" route --terrain "$DEM" --rover "$WORK/rover.toml" \
+        --from "$FROM" --to "$TO" --objective energy --json > "$WORK/sunward.json"; } 2>&1 | tail -1 )
+OURS_T=${OUT% *}
+RSS_KB=${OUT#* }
+python3 - "$WORK/sunward.json" "$PEER_T" "$OURS_T" "$RSS_KB" "$SIZE" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+peer, ours, rss_kb, n = float(sys.argv[2]), float(sys.argv[3]), float(sys.argv[4]), int(sys.argv[5])
+print(f"sunward: {len(d['cells'])} cells, {d['energy_wh']:.1f} Wh, {d['expanded_nodes']} expanded, {ours:.2f} s wall")
+print(f"ratio peer/sunward: {peer / ours:.2f}x (target 8x)")
+print(f"sunward peak memory: {rss_kb / 1024:.0f} MiB = {rss_kb * 1024 / (n * n):.1f} bytes per cell (target 24)")
+PY
