@@ -215,5 +215,8 @@ fn traction_limit_closes_a_sandy_climb() {
     let out = run(&["--rover", sand.to_str().unwrap()]);
     let err = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(2), "{err}");
-    assert!(err.contains("the way is closed by the traction limit"), "{err}");
+    assert!(
+        err.contains("the way is closed by the traction limit"),
+        "{err}"
+    );
 }

@@ -1,3 +1,4 @@
 //! Reports and output files: pure serialisers plus one atomic writer.
 
 pub mod atomic;
+pub mod map;

@@ -140,3 +140,18 @@ pub fn write_gray16<W: Write>(
     w.write_image_data(&bytes).map_err(std::io::Error::other)?;
     w.finish().map_err(std::io::Error::other)
 }
+
+/// Encodes 8-bit RGB pixels (row-major, 3 bytes each) as a PNG picture.
+pub fn write_rgb8<W: Write>(
+    out: W,
+    width: usize,
+    height: usize,
+    pixels: &[u8],
+) -> std::io::Result<()> {
+    let mut enc = png::Encoder::new(out, width as u32, height as u32);
+    enc.set_color(png::ColorType::Rgb);
+    enc.set_depth(png::BitDepth::Eight);
+    let mut w = enc.write_header().map_err(std::io::Error::other)?;
+    w.write_image_data(pixels).map_err(std::io::Error::other)?;
+    w.finish().map_err(std::io::Error::other)
+}

@@ -1,0 +1,81 @@
+//! The route over shaded relief, as RGB pixels: grey hillshade, the route coloured by
+//! step energy (blue = low or regenerating, through yellow, to red = the most costly
+//! steps of this route), the start in green and the goal in white on black. Each grid
+//! cell is drawn as `scale × scale` pixels so small grids stay readable.
+//!
+//! # Units
+//! Pixels; energies in joules only for the colour scale.
+
+use crate::plan::Route;
+
+/// Colour ramp for t ∈ [0, 1]: blue → cyan → yellow → red.
+fn ramp(t: f64) -> [u8; 3] {
+    let t = t.clamp(0.0, 1.0);
+    let stops = [
+        [40.0, 70.0, 220.0],
+        [40.0, 200.0, 220.0],
+        [250.0, 220.0, 40.0],
+        [220.0, 30.0, 30.0],
+    ];
+    let x = t * 3.0;
+    let i = (x.floor() as usize).min(2);
+    let f = x - i as f64;
+    let c = |k: usize| (stops[i][k] + (stops[i + 1][k] - stops[i][k]) * f) as u8;
+    [c(0), c(1), c(2)]
+}
+
+/// RGB pixels of the map: `(width·scale) × (height·scale)`.
+pub fn route_map_rgb(
+    grey: &[u8],
+    width: usize,
+    height: usize,
+    route: &Route,
+    scale: usize,
+) -> Vec<u8> {
+    let (pw, ph) = (width * scale, height * scale);
+    let mut px = vec![0u8; pw * ph * 3];
+    for (i, chunk) in px.chunks_exact_mut(3).enumerate() {
+        let (x, y) = (i % pw, i / pw);
+        let g = grey[(y / scale) * width + x / scale];
+        chunk.copy_from_slice(&[g, g, g]);
+    }
+    let energies: Vec<f64> = route.profile.iter().map(|p| p.step_energy_j).collect();
+    let lo = energies.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = energies.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let mut paint = |col: usize, row: usize, rgb: [u8; 3], grow: usize| {
+        let (cx, cy) = (col * scale + scale / 2, row * scale + scale / 2);
+        for y in cy.saturating_sub(grow)..(cy + grow + 1).min(ph) {
+            for x in cx.saturating_sub(grow)..(cx + grow + 1).min(pw) {
+                px[(y * pw + x) * 3..(y * pw + x) * 3 + 3].copy_from_slice(&rgb);
+            }
+        }
+    };
+    let line = scale.max(2) / 2;
+    for p in &route.profile {
+        let t = if hi > lo {
+            (p.step_energy_j - lo) / (hi - lo)
+        } else {
+            0.5
+        };
+        paint(p.col, p.row, ramp(t), line);
+    }
+    let mark = (scale * 3).max(4);
+    if let (Some(a), Some(b)) = (route.profile.first(), route.profile.last()) {
+        paint(a.col, a.row, [0, 0, 0], mark + 1);
+        paint(a.col, a.row, [40, 200, 60], mark);
+        paint(b.col, b.row, [0, 0, 0], mark + 1);
+        paint(b.col, b.row, [255, 255, 255], mark);
+    }
+    px
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ramp_ends_are_blue_and_red() {
+        assert_eq!(ramp(0.0), [40, 70, 220]);
+        assert_eq!(ramp(1.0), [220, 30, 30]);
+    }
+}
