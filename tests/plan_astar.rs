@@ -505,3 +505,64 @@ fn vehicle_rover_keeps_the_model_contract_and_plans_exactly() {
     }
     assert!(compared >= 5, "{compared}");
 }
+
+/// Smoothing on a flat plane turns the 8-connected zig-zag into the straight line:
+/// analytic length √(20² + 10²) cells, cheaper than the grid path; on random terrain it
+/// never costs more than the grid path under the same evaluation and keeps the ends.
+#[test]
+fn smoothing_straightens_and_never_costs_more() {
+    let dem = plane(30, 20, 2.0, 0.0);
+    let flags = CellFlags::from_dem(&dem);
+    let model = rover(0.0);
+    let p = Planner {
+        dem: &dem,
+        flags: &flags,
+        model: &model,
+        limits: TiltLimits::default(),
+        connectivity: Connectivity::Eight,
+        objective: Objective::ENERGY,
+    };
+    let (start, goal) = (30 + 1, 11 * 30 + 21);
+    let path = p.search(start, goal, &mut Workspace::default()).unwrap();
+    let sm = p.smooth(&path.cells);
+    let straight = (20f64 * 20.0 + 10.0 * 10.0).sqrt() * 2.0;
+    assert!(
+        (sm.length_m - straight).abs() < 1e-9,
+        "{} vs {straight}",
+        sm.length_m
+    );
+    assert_eq!(sm.points.len(), 2);
+    assert!(sm.smoothed_cost < sm.grid_cost);
+    assert!(
+        (sm.grid_cost - path.cost).abs() < 1e-6 * path.cost,
+        "same evaluation on a plane"
+    );
+
+    let mut rng = SplitMix64::new(31);
+    for _ in 0..30 {
+        let mut dem = random_dem(&mut rng, 16, 12);
+        dem.data_mut().iter_mut().for_each(|z| *z *= 0.4);
+        let flags = CellFlags::from_dem(&dem);
+        let p = Planner {
+            dem: &dem,
+            flags: &flags,
+            model: &model,
+            limits: TiltLimits::default(),
+            connectivity: Connectivity::Eight,
+            objective: Objective::ENERGY,
+        };
+        let (start, goal) = (0, dem.len() - 1);
+        if flags.blocked(start).is_some() || flags.blocked(goal).is_some() {
+            continue;
+        }
+        let Ok(path) = p.search(start, goal, &mut Workspace::default()) else {
+            continue;
+        };
+        let sm = p.smooth(&path.cells);
+        assert!(sm.smoothed_cost <= sm.grid_cost + 1e-9 * sm.grid_cost.abs());
+        let c = |cell: usize| dem.georef.cell_centre(cell % 16, cell / 16);
+        assert_eq!((sm.points[0].x, sm.points[0].y), c(start));
+        let last = sm.points[sm.points.len() - 1];
+        assert_eq!((last.x, last.y), c(goal));
+    }
+}

@@ -6,6 +6,7 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 use serde_json::{json, Value};
 
+use sunward::plan::smooth::Smoothed;
 use sunward::plan::{
     plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
 };
@@ -88,6 +89,10 @@ pub struct RouteArgs {
     /// Neighbours per cell: 8, or 16 (adds knight moves for smoother headings).
     #[arg(long, value_name = "N", default_value_t = 8)]
     connectivity: u8,
+    /// Any-angle smoothing: straight shortcuts that keep every limit and never cost more
+    /// (the GeoJSON then holds the smoothed line; the profile stays on grid cells).
+    #[arg(long)]
+    smooth: bool,
     /// Write the route as a GeoJSON LineString (coordinates in the DEM's CRS).
     #[arg(long, value_name = "route.geojson")]
     out: Option<PathBuf>,
@@ -245,6 +250,19 @@ pub fn profile_csv(route: &Route) -> String {
     out
 }
 
+/// What smoothing changed, for the JSON summary.
+fn smoothing_json(sm: &Smoothed) -> Value {
+    json!({
+        "points": sm.points.len(),
+        "length_m": sm.length_m,
+        "energy_wh": sunward::units::j_to_wh(sm.energy_j),
+        "duration_s": sm.time_s,
+        "cost": sm.smoothed_cost,
+        "grid_cost_same_evaluation": sm.grid_cost,
+        "cost_change_percent": 100.0 * (sm.smoothed_cost - sm.grid_cost) / sm.grid_cost.abs().max(1e-12),
+    })
+}
+
 pub fn run(a: RouteArgs) -> Result<(), Error> {
     let connectivity = match a.connectivity {
         8 => Connectivity::Eight,
@@ -289,10 +307,22 @@ pub fn run(a: RouteArgs) -> Result<(), Error> {
         y: a.to.1,
     });
     let route = plan_route(&planner, &points)?;
-    let summary = summary_json(&route, objective, &rover, &limits);
+    let mut summary = summary_json(&route, objective, &rover, &limits);
+    let smoothed = a.smooth.then(|| {
+        let w = dem.width();
+        let cells: Vec<usize> = route.profile.iter().map(|p| p.row * w + p.col).collect();
+        planner.smooth(&cells)
+    });
+    if let Some(sm) = &smoothed {
+        summary["smoothed"] = smoothing_json(sm);
+    }
     if let Some(out) = &a.out {
-        let text =
-            serde_json::to_string(&route_geojson(&route, &summary)).expect("JSON values serialise");
+        let mut gj = route_geojson(&route, &summary);
+        if let Some(sm) = &smoothed {
+            let coords: Vec<[f64; 2]> = sm.points.iter().map(|p| [p.x, p.y]).collect();
+            gj["features"][0]["geometry"]["coordinates"] = json!(coords);
+        }
+        let text = serde_json::to_string(&gj).expect("JSON values serialise");
         write_atomic(out, |w| w.write_all(text.as_bytes()))?;
     }
     if let Some(out) = &a.profile {

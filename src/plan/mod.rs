@@ -7,6 +7,7 @@ pub mod cost;
 pub mod error;
 pub mod queue;
 pub mod route;
+pub mod smooth;
 pub mod tilt;
 
 pub use astar::{CellFlags, Connectivity, GridPath, Planner, TiltLimits, Unreachable, Workspace};
