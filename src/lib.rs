@@ -59,6 +59,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod mission;
 pub mod plan;
 pub mod progress;
 pub mod report;

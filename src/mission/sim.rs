@@ -1,0 +1,558 @@
+//! The one orchestrator: time-steps a planned route through one season's days — drive,
+//! park, charge, sleep — with the sun, the panels, the loads, the thermal node and the
+//! pack, and keeps the books.
+//!
+//! # Each step (length `step_s`, at most 60 s)
+//! 1. **Decide** what the rover does ([`Activity`]): inside the driving hours of the
+//!    policy it drives when its state of charge is at least `min_soc_to_drive`; once it
+//!    has had to stop for that reason it parks and charges until `resume_soc`; outside
+//!    the driving hours it sleeps (hotel off, only loads scheduled for sleep or always).
+//! 2. **Drive** along the route profile at the vehicle model's speed: the drive energy of
+//!    each route step (its battery energy minus the hotel energy of its driving time) is
+//!    spread over its driving time; partial steps are prorated.
+//! 3. **Sun**: SPA position at the middle of the step, Ineichen-Perez clear sky,
+//!    transposition onto the panel plane of the mount at the body attitude of the current
+//!    route step (body-mounted panels follow pitch, roll and heading), terrain shading of
+//!    the current cell from the horizon map, PV power at the cell temperature.
+//! 4. **Loads**: hotel power while awake; the named loads by their schedules.
+//! 5. **Thermal**: one node; internal heat = electronics (hotel + payload) + last step's
+//!    I²R loss; the thermostat heater draws from the pack.
+//! 6. **Pack**: the net terminal power (loads + heater + drive − solar) for `step_s` at
+//!    the node's temperature; unaccepted solar is curtailed; a shortfall strands the rover.
+//!
+//! A run ends at arrival (or, with [`EndCondition::Deadline`], at the deadline), at the
+//! deadline, or when the rover is stranded. Stranding causes: `heat` when the pack is too
+//! cold to discharge or the heater took a quarter or more of the energy used in the last
+//! 24 h, otherwise `light`.
+//!
+//! # Limits
+//! Clear-sky irradiance only (an upper bound of real skies); sites' payload runs are not
+//! scheduled yet (loads scheduled `at_site` never run); acceleration and turning energy
+//! are left out; the rover's state inside a step is taken as constant.
+//!
+//! # Units
+//! Seconds, watts, watt-hours, degrees Celsius, radians.
+
+use chrono::{DateTime, Duration, Timelike, Utc};
+
+use crate::battery::ambient::Ambient;
+use crate::battery::loads::{Activity, LoadContext, Loads};
+use crate::battery::pack::{Pack, StepRequest};
+use crate::battery::thermal::{ThermalInput, ThermalNode, ThermalState};
+use crate::mission::ledger::Ledger;
+use crate::plan::Route;
+use crate::sun::irradiance::{
+    absolute_airmass, extraterrestrial_w_m2, ineichen_perez, relative_airmass, LinkeTurbidity,
+};
+use crate::sun::panel::{Attitude, Mount, Panel};
+use crate::sun::position::{Observer, SunTrack, DEFAULT_NODE_STEP_S};
+use crate::sun::shading::SiteShade;
+use crate::sun::transposition::{plane_of_array, SkyModel, SunGeometry};
+use crate::terrain::horizon::HorizonMap;
+use crate::vehicle::Rover;
+
+/// When the rover may drive.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum DriveHours {
+    /// While the sun is above the astronomical horizon.
+    Daylight,
+    /// Between two local times of day, hours (the window may cross midnight).
+    LocalWindow {
+        /// Start, hours after local midnight.
+        start_h: f64,
+        /// End, hours after local midnight.
+        end_h: f64,
+    },
+    /// Any time.
+    Always,
+}
+
+/// When a run ends besides stranding and the deadline.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum EndCondition {
+    /// At arrival at the goal.
+    Arrival,
+    /// At the deadline, even after arrival (the rover then parks).
+    Deadline,
+}
+
+/// The operating policy.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Policy {
+    /// Driving hours.
+    pub drive_hours: DriveHours,
+    /// Drive only at or above this state of charge (0..1).
+    pub min_soc_to_drive: f64,
+    /// After stopping to charge, wait until this state of charge (≥ min_soc_to_drive).
+    pub resume_soc: f64,
+    /// Longest run, seconds after the start.
+    pub deadline_s: f64,
+    /// When the run ends.
+    pub end: EndCondition,
+}
+
+/// The sun and sky side of a run.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SkySetup {
+    /// The site.
+    pub observer: Observer,
+    /// ΔT = TT − UT, seconds.
+    pub delta_t_s: f64,
+    /// Monthly Linke turbidity for the clear sky.
+    pub linke: LinkeTurbidity,
+    /// Sky-diffuse transposition model.
+    pub sky_model: SkyModel,
+    /// Ground albedo (0..1).
+    pub albedo: f64,
+    /// Wind speed for the cell-temperature model, m/s.
+    pub wind_m_s: f64,
+}
+
+/// Everything one run needs; the stages' own checked types.
+#[derive(Debug, Clone)]
+pub struct SimSetup<'a> {
+    /// The planned route (profile from start to goal).
+    pub route: &'a Route,
+    /// The rover (hotel power).
+    pub rover: &'a Rover,
+    /// The pack.
+    pub pack: &'a Pack,
+    /// State of charge at the start (0..1).
+    pub initial_soc: f64,
+    /// The battery box.
+    pub thermal: &'a ThermalNode,
+    /// Box temperature at the start, °C (None: the ambient temperature).
+    pub initial_box_temp_c: Option<f64>,
+    /// Named loads.
+    pub loads: &'a Loads,
+    /// Panels.
+    pub panel: &'a Panel,
+    /// How the panels are mounted.
+    pub mount: Mount,
+    /// Sun and sky.
+    pub sky: SkySetup,
+    /// Terrain horizons for shading (None: open horizon).
+    pub horizon: Option<&'a HorizonMap>,
+    /// Air temperature.
+    pub ambient: &'a Ambient,
+    /// Local clock offset from UTC, seconds.
+    pub utc_offset_s: i64,
+    /// Operating policy.
+    pub policy: Policy,
+    /// Step length, seconds (1..=60).
+    pub step_s: f64,
+}
+
+/// Why a run stopped short.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Stranded {
+    /// When.
+    pub time: DateTime<Utc>,
+    /// Map x of the rover.
+    pub x: f64,
+    /// Map y of the rover.
+    pub y: f64,
+    /// `light` or `heat`.
+    pub cause: &'static str,
+}
+
+/// One recorded step.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Sample {
+    /// Start of the step.
+    pub time: DateTime<Utc>,
+    /// Rover position, map x.
+    pub x: f64,
+    /// Rover position, map y.
+    pub y: f64,
+    /// 0 asleep, 1 parked, 2 driving.
+    pub activity: u8,
+    /// Panel output, W.
+    pub generated_w: f64,
+    /// Drive power, W.
+    pub drive_w: f64,
+    /// Hotel power, W.
+    pub hotel_w: f64,
+    /// Payload loads, W.
+    pub payload_w: f64,
+    /// Heater, W.
+    pub heater_w: f64,
+    /// Pack losses, W.
+    pub losses_w: f64,
+    /// State of charge at the end of the step.
+    pub soc: f64,
+    /// Battery box temperature at the end of the step, °C.
+    pub box_temp_c: f64,
+    /// Air temperature, °C.
+    pub ambient_c: f64,
+    /// Sun elevation (apparent), degrees.
+    pub sun_elevation_deg: f64,
+}
+
+/// The result of one season's run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Run {
+    /// Every step.
+    pub samples: Vec<Sample>,
+    /// Totals.
+    pub ledger: Ledger,
+    /// Arrival at the goal, if reached.
+    pub arrival: Option<DateTime<Utc>>,
+    /// Stranding, if it happened.
+    pub stranded: Option<Stranded>,
+    /// Lowest state of charge and when.
+    pub min_soc: (f64, DateTime<Utc>),
+    /// Hours spent below the reserve state of charge.
+    pub hours_below_reserve: f64,
+    /// First time the box fell below the storage minimum, if it did.
+    pub storage_breach: Option<DateTime<Utc>>,
+    /// Route distance covered, metres.
+    pub distance_m: f64,
+}
+
+/// Where the rover is on the route: the index of the profile row it is heading to and the
+/// seconds already driven of that step.
+#[derive(Debug, Clone, Copy)]
+struct Progress {
+    next: usize,
+    into_step_s: f64,
+}
+
+/// Errors a run can stop with before it starts.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SimError {
+    /// A setup value is out of range.
+    #[error("simulation setting {name} = {value}: expected {expected}")]
+    Setting {
+        /// The setting.
+        name: &'static str,
+        /// Its value.
+        value: String,
+        /// The range.
+        expected: &'static str,
+    },
+    /// A stage refused its input.
+    #[error("{0}")]
+    Stage(String),
+}
+
+fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
+    let bad = |name, value: f64, expected| SimError::Setting {
+        name,
+        value: value.to_string(),
+        expected,
+    };
+    if !(setup.step_s >= 1.0 && setup.step_s <= 60.0) {
+        return Err(bad("step_s", setup.step_s, "1 to 60 seconds"));
+    }
+    if !(0.0..=1.0).contains(&setup.initial_soc) {
+        return Err(bad(
+            "initial_soc",
+            setup.initial_soc,
+            "a fraction from 0 to 1",
+        ));
+    }
+    let p = &setup.policy;
+    if !(0.0..=1.0).contains(&p.min_soc_to_drive)
+        || !(p.min_soc_to_drive..=1.0).contains(&p.resume_soc)
+    {
+        return Err(bad(
+            "resume_soc",
+            p.resume_soc,
+            "min_soc_to_drive ≤ resume_soc ≤ 1",
+        ));
+    }
+    if !(p.deadline_s > 0.0 && p.deadline_s <= 400.0 * 86_400.0) {
+        return Err(bad(
+            "deadline_s",
+            p.deadline_s,
+            "more than 0 and at most 400 days",
+        ));
+    }
+    Ok(())
+}
+
+/// Runs one season from `start`.
+pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimError> {
+    check(setup)?;
+    let end = start + Duration::milliseconds((setup.policy.deadline_s * 1000.0) as i64);
+    let track = SunTrack::new(
+        start,
+        end + Duration::hours(1),
+        &setup.sky.observer,
+        setup.sky.delta_t_s,
+        DEFAULT_NODE_STEP_S,
+    )
+    .map_err(|e| SimError::Stage(e.to_string()))?;
+    let mut pack_state = setup
+        .pack
+        .state_at(setup.initial_soc)
+        .map_err(|e| SimError::Stage(e.to_string()))?;
+    let first_air = setup.ambient.temp_c(start, setup.utc_offset_s);
+    let mut box_state = ThermalState {
+        temp_c: setup.initial_box_temp_c.unwrap_or(first_air),
+        heater_on: false,
+    };
+    let profile = &setup.route.profile;
+    let mut prog = Progress {
+        next: 1,
+        into_step_s: 0.0,
+    };
+    let mut run = Run {
+        samples: Vec::new(),
+        ledger: Ledger::default(),
+        arrival: (profile.len() <= 1).then_some(start),
+        stranded: None,
+        min_soc: (setup.initial_soc, start),
+        hours_below_reserve: 0.0,
+        storage_breach: None,
+        distance_m: 0.0,
+    };
+    let reserve = setup.pack.params().reserve_soc;
+    let dt = setup.step_s;
+    let (mut charge_hold, mut last_loss_w) = (false, 0.0);
+    let mut day_window: std::collections::VecDeque<(f64, f64)> = Default::default();
+    let steps = (setup.policy.deadline_s / dt).ceil() as usize;
+    for k in 0..steps {
+        if run.arrival.is_some() && setup.policy.end == EndCondition::Arrival {
+            break;
+        }
+        let t = start + Duration::milliseconds((k as f64 * dt * 1000.0) as i64);
+        let mid = t + Duration::milliseconds((dt * 500.0) as i64);
+        let sun = track.at(mid);
+        let daylight = sun.apparent_elevation_rad() > 0.0;
+        let local_s = local_seconds(mid, setup.utc_offset_s);
+        let in_hours = match setup.policy.drive_hours {
+            DriveHours::Daylight => daylight,
+            DriveHours::Always => true,
+            DriveHours::LocalWindow { start_h, end_h } => {
+                in_window(local_s / 3600.0, start_h, end_h)
+            }
+        };
+        if charge_hold && pack_state.soc >= setup.policy.resume_soc {
+            charge_hold = false;
+        }
+        let arrived = run.arrival.is_some();
+        let activity = if !in_hours {
+            Activity::Asleep
+        } else if arrived || charge_hold {
+            Activity::Parked
+        } else if pack_state.soc >= setup.policy.min_soc_to_drive {
+            Activity::Driving
+        } else {
+            charge_hold = true;
+            Activity::Parked
+        };
+        // Drive.
+        let (drive_j, drive_s) = if activity == Activity::Driving {
+            drive(setup, &mut prog, dt, &mut run.distance_m)
+        } else {
+            (0.0, 0.0)
+        };
+        if prog.next >= profile.len() && run.arrival.is_none() && profile.len() > 1 {
+            run.arrival = Some(t + Duration::milliseconds((drive_s * 1000.0) as i64));
+        }
+        // The cell the rover is in (the start of the step it is driving) and the step
+        // whose attitude it has.
+        let here = &profile[(prog.next - 1).min(profile.len() - 1)];
+        let heading_row = &profile[prog.next.min(profile.len() - 1)];
+        // Sun and panels.
+        let air_c = setup.ambient.temp_c(mid, setup.utc_offset_s);
+        let att = Attitude {
+            heading_rad: heading_row.heading_rad,
+            pitch_rad: heading_row.pitch_rad,
+            roll_rad: heading_row.roll_rad,
+        };
+        let poa_w_m2 = poa(setup, &sun, &att, here.col, here.row, mid);
+        let gen_w = setup.panel.power_at_w(poa_w_m2, air_c, setup.sky.wind_m_s);
+        // Loads.
+        let hotel_w = if activity == Activity::Asleep {
+            0.0
+        } else {
+            setup.rover.hotel_power_w
+        };
+        let ctx = LoadContext {
+            local_time_s: local_s,
+            activity,
+            daylight,
+            site_elapsed_s: None,
+            elapsed_s: k as f64 * dt,
+        };
+        let payload_w = setup.loads.total_w(&ctx);
+        let drive_w = drive_j / dt;
+        // Thermal.
+        let th = setup.thermal.step(
+            &box_state,
+            &ThermalInput {
+                ambient_c: air_c,
+                internal_heat_w: hotel_w + payload_w + last_loss_w,
+                irradiance_w_m2: 0.0,
+                dt_s: dt,
+            },
+        );
+        let th = th.map_err(|e| SimError::Stage(e.to_string()))?;
+        if th.flags.below_storage_min && run.storage_breach.is_none() {
+            run.storage_breach = Some(t);
+        }
+        box_state = th.state;
+        let heater_w = th.heater_energy_wh * 3600.0 / dt;
+        // Pack.
+        let demand_w = drive_w + hotel_w + payload_w + heater_w;
+        let ps = setup
+            .pack
+            .step(
+                &pack_state,
+                &StepRequest {
+                    power_w: demand_w - gen_w,
+                    dt_s: dt,
+                    cell_temp_c: box_state.temp_c,
+                },
+            )
+            .map_err(|e| SimError::Stage(e.to_string()))?;
+        pack_state = ps.state;
+        let losses_wh = ps.loss_resistive_wh + ps.loss_coulombic_wh;
+        last_loss_w = losses_wh * 3600.0 / dt;
+        // Served share of the demand (below 1 only in the step that strands the rover).
+        let served = if ps.shortfall_w > 1e-9 && demand_w > 0.0 {
+            ((demand_w - ps.shortfall_w) / demand_w).clamp(0.0, 1.0)
+        } else {
+            1.0
+        };
+        let h = dt / 3600.0;
+        let step_ledger = Ledger {
+            generated_wh: gen_w * h,
+            curtailed_wh: ps.unaccepted_w * h,
+            drive_wh: drive_w * served * h,
+            hotel_wh: hotel_w * served * h,
+            payload_wh: payload_w * served * h,
+            heater_wh: heater_w * served * h,
+            losses_wh,
+            stored_delta_wh: ps.stored_delta_wh,
+        };
+        run.ledger.add(&step_ledger);
+        day_window.push_back((step_ledger.heater_wh, step_ledger.consumed_wh()));
+        if day_window.len() as f64 * dt > 86_400.0 {
+            day_window.pop_front();
+        }
+        if pack_state.soc < run.min_soc.0 {
+            run.min_soc = (
+                pack_state.soc,
+                t + Duration::milliseconds((dt * 1000.0) as i64),
+            );
+        }
+        if pack_state.soc < reserve {
+            run.hours_below_reserve += h;
+        }
+        run.samples.push(Sample {
+            time: t,
+            x: here.x,
+            y: here.y,
+            activity: match activity {
+                Activity::Asleep => 0,
+                Activity::Parked => 1,
+                Activity::Driving => 2,
+            },
+            generated_w: gen_w,
+            drive_w,
+            hotel_w,
+            payload_w,
+            heater_w,
+            losses_w: last_loss_w,
+            soc: pack_state.soc,
+            box_temp_c: box_state.temp_c,
+            ambient_c: air_c,
+            sun_elevation_deg: sun.apparent_elevation_rad().to_degrees(),
+        });
+        if ps.shortfall_w > 1e-9 {
+            let (heater, used) = day_window
+                .iter()
+                .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
+            let heat = ps.flags.discharge_blocked_temp || (used > 0.0 && heater >= 0.25 * used);
+            run.stranded = Some(Stranded {
+                time: t,
+                x: here.x,
+                y: here.y,
+                cause: if heat { "heat" } else { "light" },
+            });
+            break;
+        }
+    }
+    Ok(run)
+}
+
+/// Advances along the profile for up to `dt` seconds; returns (drive energy J, seconds
+/// driven).
+fn drive(setup: &SimSetup<'_>, prog: &mut Progress, dt: f64, distance_m: &mut f64) -> (f64, f64) {
+    let profile = &setup.route.profile;
+    let hotel = setup.rover.hotel_power_w;
+    let (mut left, mut energy) = (dt, 0.0);
+    while left > 0.0 && prog.next < profile.len() {
+        let row = &profile[prog.next];
+        let step_t = row.step_time_s.max(1e-9);
+        let take = (step_t - prog.into_step_s).min(left);
+        let share = take / step_t;
+        energy += (row.step_energy_j - hotel * row.step_time_s) * share;
+        *distance_m += (row.distance_m - profile[prog.next - 1].distance_m) * share;
+        prog.into_step_s += take;
+        left -= take;
+        if prog.into_step_s >= step_t - 1e-9 {
+            prog.next += 1;
+            prog.into_step_s = 0.0;
+        }
+    }
+    (energy, dt - left)
+}
+
+/// Plane-of-array irradiance on the panels at the rover's cell, W/m².
+fn poa(
+    setup: &SimSetup<'_>,
+    sun: &crate::sun::position::SunPosition,
+    att: &Attitude,
+    col: usize,
+    row: usize,
+    t: DateTime<Utc>,
+) -> f64 {
+    let Some(am) = relative_airmass(sun.apparent_zenith_rad) else {
+        return 0.0;
+    };
+    let e0 = extraterrestrial_w_m2(sun.earth_sun_distance_au);
+    use chrono::Datelike;
+    let sky = &setup.sky;
+    let irr = ineichen_perez(
+        sun.apparent_zenith_rad,
+        absolute_airmass(am, sky.observer.pressure_hpa),
+        sky.linke.for_month(t.month()),
+        sky.observer.elevation_m,
+        e0,
+    );
+    let Some(plane) = setup
+        .mount
+        .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad)
+    else {
+        return 0.0;
+    };
+    let geom = SunGeometry {
+        zenith_rad: sun.apparent_zenith_rad,
+        azimuth_rad: sun.azimuth_rad,
+        dni_extra_w_m2: e0,
+        airmass_relative: Some(am),
+    };
+    let mut p = plane_of_array(&plane, &geom, &irr, sky.albedo, sky.sky_model);
+    if let Some(shade) = setup.horizon.and_then(|h| SiteShade::new(h, col, row)) {
+        p = shade.apply(p, sun.apparent_elevation_rad(), sun.azimuth_rad);
+    }
+    p.total_w_m2()
+}
+
+fn local_seconds(t: DateTime<Utc>, offset_s: i64) -> f64 {
+    let local = t + Duration::seconds(offset_s);
+    f64::from(local.num_seconds_from_midnight()) + f64::from(local.nanosecond()) * 1e-9
+}
+
+fn in_window(hour: f64, start_h: f64, end_h: f64) -> bool {
+    if start_h <= end_h {
+        (start_h..end_h).contains(&hour)
+    } else {
+        hour >= start_h || hour < end_h
+    }
+}
