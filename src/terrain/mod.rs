@@ -11,6 +11,7 @@ pub mod raster;
 pub mod roughness;
 pub mod slope;
 pub mod synth;
+pub mod utm;
 
 pub use error::TerrainError;
 pub use raster::{CellSize, Crs, CrsKind, Dem, GeoRef, Grid};
