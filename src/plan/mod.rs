@@ -5,6 +5,7 @@
 pub mod astar;
 pub mod cost;
 pub mod queue;
+pub mod sites;
 pub mod tilt;
 
 pub use astar::{CellFlags, Connectivity, GridPath, Planner, TiltLimits, Unreachable, Workspace};
