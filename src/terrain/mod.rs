@@ -7,6 +7,7 @@ pub mod error;
 pub mod hillshade;
 pub mod horizon;
 pub mod io;
+pub mod mask;
 pub mod raster;
 pub mod roughness;
 pub mod slope;
