@@ -175,7 +175,7 @@ fn heuristic_gap_to_held_karp_is_small() {
                 random_matrix(&mut rng, n, 0.0)
             };
             let legs = legs_of(&m);
-            let exact = held_karp(&legs);
+            let exact = held_karp(&legs).unwrap();
             let heur = insertion_local_search(&legs, OrderOptions::default().kicks);
             assert_is_tour(&heur.order, n);
             assert!(heur.cost >= exact.cost - 1e-9 * exact.cost.abs());
@@ -253,12 +253,14 @@ fn method_follows_the_exact_limit() {
     let err = order_sites(
         &g,
         &OrderOptions {
-            exact_max_sites: 40,
+            exact_max_sites: 17,
             ..Default::default()
         },
     )
     .unwrap_err();
     assert!(matches!(err, SiteError::Option { .. }), "{err}");
+    let big = legs_of(&terrain_matrix(&mut rng, 18));
+    assert!(held_karp(&big).is_err());
 }
 
 #[test]
@@ -395,4 +397,20 @@ fn caller_filled_graph_with_parallel_and_negative_edges() {
     // Tours by hand: 0-1-2-3-0 = 3 + 4 − 1.5 + 6 = 11.5; 0-3-2-1-0 = 2 + 9 + 1 + 2 = 14.
     assert_eq!(t.order, vec![0, 1, 2, 3, 0]);
     assert!(close(t.cost, 11.5));
+}
+
+/// Sixty terrain-like sites (the heuristic's intended size): a valid tour, no dearer
+/// than the nearest-insertion tour it starts from, and the same on a second run
+/// (deterministic kicks).
+#[test]
+fn sixty_sites_give_a_deterministic_improved_tour() {
+    let mut rng = Rng(17);
+    let m = terrain_matrix(&mut rng, 61);
+    let legs = legs_of(&m);
+    let start = legs.tour_cost(&sites::nearest_insertion(&legs));
+    let g = graph_from_matrix(&m, None).unwrap();
+    let t = order_sites(&g, &OrderOptions::default()).unwrap();
+    assert_is_tour(&t.order, 61);
+    assert!(t.cost <= start + 1e-9, "{} > {start}", t.cost);
+    assert_eq!(order_sites(&g, &OrderOptions::default()).unwrap(), t);
 }

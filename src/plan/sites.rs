@@ -16,7 +16,7 @@
 //!   J. ACM 9(1), 61–63, 1962):
 //!   `C(S, j) = min over i in S∖{j} of C(S∖{j}, i) + c(i, j)`, `C({j}, j) = c(0, j)`,
 //!   tour cost `min over j of C(all, j) + c(j, 0)`. Time O(2^m m²), memory O(2^m m) for
-//!   m sites: 10 sites take about 10⁵ steps, 16 sites about 1.7·10⁷ steps and 8 MB.
+//!   m sites: 10 sites take about 10⁵ steps, 16 sites about 1.7·10⁷ steps and 18 MB.
 //! - Beyond: nearest insertion (D. J. Rosenkrantz, R. E. Stearns and P. M. Lewis,
 //!   "An analysis of several heuristics for the traveling salesman problem", SIAM J.
 //!   Comput. 6(3), 563–581, 1977), adapted to direction: the site closest to the tour in
@@ -52,9 +52,9 @@ use petgraph::visit::{Dfs, EdgeFiltered, EdgeRef, Reversed};
 /// guarantee where it costs nothing.
 pub const DEFAULT_EXACT_MAX_SITES: usize = 10;
 
-/// Hard ceiling for [`OrderOptions::exact_max_sites`]: 2^20 · 20 table entries (160 MB)
-/// is the most this module will allocate.
-pub const EXACT_MAX_SITES_LIMIT: usize = 20;
+/// Hard ceiling for [`OrderOptions::exact_max_sites`]: 2^16 · 16 table entries of
+/// 17 bytes (18 MB, about 1.7·10⁷ steps) is the most this module will allocate.
+pub const EXACT_MAX_SITES_LIMIT: usize = 16;
 
 /// A site (or the base) in the [`SiteGraph`].
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -345,17 +345,13 @@ where
 /// beyond. Errors name a site that cannot be reached or left, or a leg the tour would need.
 pub fn order_sites(g: &SiteGraph, options: &OrderOptions) -> Result<Tour, SiteError> {
     if options.exact_max_sites > EXACT_MAX_SITES_LIMIT {
-        return Err(SiteError::Option {
-            name: "exact_max_sites",
-            value: options.exact_max_sites.to_string(),
-            expected: "at most 20 (the exact method's memory grows as 2^sites)",
-        });
+        return Err(too_many_for_exact(options.exact_max_sites));
     }
     check_costs(g)?;
     check_reachable(g)?;
     let legs = LegCosts::from_graph(g);
     let tour = if legs.len() - 1 <= options.exact_max_sites {
-        held_karp(&legs)
+        held_karp(&legs)?
     } else {
         insertion_local_search(&legs, options.kicks)
     };
@@ -431,15 +427,18 @@ const WORST: Weight = Weight {
 
 /// The optimal tour by Held–Karp dynamic programming (see the module doc). A tour that
 /// needs a missing leg is returned with cost +∞ when no other exists; callers check.
-/// Meant for up to [`EXACT_MAX_SITES_LIMIT`] sites.
-pub fn held_karp(legs: &LegCosts) -> Tour {
+/// Refuses more than [`EXACT_MAX_SITES_LIMIT`] sites (its memory grows as 2^sites).
+pub fn held_karp(legs: &LegCosts) -> Result<Tour, SiteError> {
     let m = legs.len().saturating_sub(1);
+    if m > EXACT_MAX_SITES_LIMIT {
+        return Err(too_many_for_exact(m));
+    }
     if m == 0 {
-        return Tour {
+        return Ok(Tour {
             order: vec![0, 0],
             cost: 0.0,
             method: Method::HeldKarp,
-        };
+        });
     }
     let (table, parent) = held_karp_table(legs, m);
     let full = (1usize << m) - 1;
@@ -451,10 +450,18 @@ pub fn held_karp(legs: &LegCosts) -> Tour {
         }
     }
     let order = held_karp_order(&parent, m, best.1);
-    Tour {
+    Ok(Tour {
         cost: legs.tour_cost(&order),
         order,
         method: Method::HeldKarp,
+    })
+}
+
+fn too_many_for_exact(sites: usize) -> SiteError {
+    SiteError::Option {
+        name: "exact_max_sites",
+        value: sites.to_string(),
+        expected: "at most 16 (the exact method's memory grows as 2^sites)",
     }
 }
 
@@ -803,7 +810,7 @@ mod tests {
             &[50.0, 10.0, 0.0, 1.0],
             &[1.0, 50.0, 10.0, 0.0],
         ]);
-        let t = held_karp(&l);
+        let t = held_karp(&l).unwrap();
         assert_eq!(t.order, vec![0, 1, 2, 3, 0]);
         assert_eq!(t.cost, 4.0);
         assert_eq!(insertion_local_search(&l, 0).cost, 4.0);
