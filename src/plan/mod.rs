@@ -7,6 +7,7 @@ pub mod cost;
 pub mod error;
 pub mod queue;
 pub mod route;
+pub mod sites;
 pub mod smooth;
 pub mod tilt;
 

@@ -7,10 +7,12 @@ pub mod error;
 pub mod hillshade;
 pub mod horizon;
 pub mod io;
+pub mod mask;
 pub mod raster;
 pub mod roughness;
 pub mod slope;
 pub mod synth;
+pub mod utm;
 
 pub use error::TerrainError;
 pub use raster::{CellSize, Crs, CrsKind, Dem, GeoRef, Grid};
