@@ -23,6 +23,17 @@ pub enum Error {
         /// What is wrong in it.
         source: VehicleError,
     },
+    /// A keep-out file.
+    #[error("{path}: {source}")]
+    KeepOut {
+        /// The GeoJSON file.
+        path: PathBuf,
+        /// What is wrong in it.
+        source: crate::terrain::mask::KeepOutError,
+    },
+    /// Ordering unordered sites.
+    #[error(transparent)]
+    Sites(#[from] crate::plan::sites::SiteError),
     /// An input file could not be read.
     #[error("{path}: reading failed: {source}. Fix: check the path")]
     Input {

@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission ─► report / study   (planned)
+//!          mission (sim, ledger) ─► report / study   (in progress)
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -23,11 +23,15 @@
 //! - [`terrain::hillshade`]: Lambertian shaded relief.
 //! - [`terrain::horizon`]: horizon angles per azimuth sector by convex-hull sweeps.
 //! - [`terrain::synth`]: seeded synthetic demo terrain.
+//! - [`terrain::mask`]: keep-out polygons (GeoJSON) rasterised onto the grid.
+//! - [`terrain::utm`]: WGS 84 to UTM and back (Krüger series).
 //! - [`plan::cost`]: what the planner asks of a vehicle (the `StepModel` contract).
 //! - [`plan::tilt`]: pitch and roll from a slope and a heading.
 //! - [`plan::queue`]: the monotone radix heap.
 //! - [`plan::astar`]: exact A* with Johnson's potential, tilt limits, explanations.
 //! - [`plan::route`]: a planned route's profile and summary, legs through waypoints.
+//! - [`plan::sites`]: visiting order of unordered sites (Held-Karp, local search).
+//! - [`plan::smooth`]: optional any-angle smoothing of a grid route.
 //! - [`vehicle::rover`]: the rover description (keys with units, defaults, ranges).
 //! - [`vehicle::traction`]: grade, rolling and Bekker soft-soil resistance, thrust, slip.
 //! - [`vehicle::powertrain`]: drive efficiency, regeneration, speed law.
@@ -48,6 +52,8 @@
 //! - [`battery::ambient`]: air temperature from monthly means or a series.
 //! - [`battery::loads`]: named loads and their schedules.
 //! - [`battery::ageing`]: equivalent full cycles and rainflow damage.
+//! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
+//! - [`mission::ledger`]: energy bookkeeping that closes.
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!

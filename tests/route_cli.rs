@@ -220,3 +220,127 @@ fn traction_limit_closes_a_sandy_climb() {
         "{err}"
     );
 }
+
+/// Unordered sites: the tour starts and ends at the start, visits every site once, and
+/// says how the order was found (Held-Karp for up to 10 sites).
+#[test]
+fn site_tour_visits_every_site_and_returns() {
+    let out = route(&[
+        "--from",
+        "220,260",
+        "--site",
+        "900,1500",
+        "--site",
+        "1700,400",
+        "--site",
+        "1500,1800",
+        "--json",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let visits: Vec<String> = v["site_order"]["visits"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s.as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(visits.len(), 5);
+    assert_eq!(visits[0], "start");
+    let mut middle = visits[1..4].to_vec();
+    middle.sort();
+    assert_eq!(middle, ["site 1", "site 2", "site 3"]);
+    assert_eq!(v["site_order"]["method"], "held_karp");
+    let cells = v["cells"].as_array().unwrap();
+    assert_eq!(
+        cells[0],
+        cells[cells.len() - 1],
+        "the tour returns to the start"
+    );
+}
+
+/// Keep-out polygons (GeoJSON in the DEM's CRS): no route cell lies inside, and a start
+/// inside one is refused with the reason.
+#[test]
+fn keep_out_areas_are_avoided() {
+    let dir = tempfile::tempdir().unwrap();
+    let ko = dir.path().join("keep_out.geojson");
+    std::fs::write(
+        &ko,
+        r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":
+        {"type":"Polygon","coordinates":[[[600,400],[1400,400],[1400,1600],[600,1600],[600,400]]]}}]}"#,
+    )
+    .unwrap();
+    let ko = ko.to_str().unwrap();
+    let out = route(&[
+        "--from",
+        "220,260",
+        "--to",
+        "1820,1760",
+        "--keep-out",
+        ko,
+        "--json",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    for c in v["cells"].as_array().unwrap() {
+        // Cell centre in map metres (4 m cells, origin (0, 2048)).
+        let x = c[0].as_f64().unwrap() * 4.0 + 2.0;
+        let y = 2048.0 - c[1].as_f64().unwrap() * 4.0 - 2.0;
+        assert!(
+            !(x > 600.0 && x < 1400.0 && y > 400.0 && y < 1600.0),
+            "cell {c} inside the keep-out"
+        );
+    }
+    let out = route(&["--from", "1000,1000", "--to", "1820,1760", "--keep-out", ko]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("blocked by the keep-out area"));
+}
+
+/// Longitude/latitude route points on a UTM grid (EPSG:32633) land in the cell that holds
+/// their projection; on a local grid they are refused.
+#[test]
+fn lonlat_points_on_a_utm_grid() {
+    use sunward::terrain::utm::{inverse, UtmZone};
+    let dem = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/reference/terrain/tf_f32_transform.tif");
+    let zone = UtmZone::from_epsg(32633).unwrap();
+    let (lat, lon) = inverse(zone, 430_010.0, 5_019_987.5).unwrap();
+    let ll = format!("{},{}", lon.to_degrees(), lat.to_degrees());
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .args(["route", "--terrain"])
+        .arg(&dem)
+        .args([
+            "--from-lonlat",
+            &ll,
+            "--to",
+            "430070,5019940",
+            "--json",
+            "--max-pitch-deg",
+            "60",
+            "--max-roll-deg",
+            "60",
+        ])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    // 4 m x 5 m cells from (430000, 5020000): (430010, 5019987.5) is the centre of column
+    // 2, row 2.
+    assert_eq!(v["cells"][0], serde_json::json!([2, 2]));
+    let out = route(&["--from-lonlat", "10,60", "--to", "1820,1760"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("neither geographic nor UTM"));
+}

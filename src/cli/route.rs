@@ -6,9 +6,11 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 use serde_json::{json, Value};
 
+use sunward::plan::sites::Tour;
 use sunward::plan::smooth::Smoothed;
 use sunward::plan::{
-    plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
+    plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint,
+    TiltLimits, Workspace,
 };
 use sunward::report::atomic::write_atomic;
 use sunward::terrain::{roughness, Dem};
@@ -62,11 +64,31 @@ pub struct RouteArgs {
     #[command(flatten)]
     dem: DemOptions,
     /// Start, in the DEM's CRS units.
-    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
-    from: (f64, f64),
-    /// Goal, in the DEM's CRS units.
-    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
-    to: (f64, f64),
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true,
+          required_unless_present = "from_lonlat", conflicts_with = "from_lonlat")]
+    from: Option<(f64, f64)>,
+    /// Start as WGS 84 longitude,latitude in degrees (geographic or UTM DEMs).
+    #[arg(long, value_name = "LON,LAT", value_parser = parse_point, allow_hyphen_values = true)]
+    from_lonlat: Option<(f64, f64)>,
+    /// Goal, in the DEM's CRS units (not with --site: a site tour returns to the start).
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true,
+          conflicts_with = "to_lonlat")]
+    to: Option<(f64, f64)>,
+    /// Goal as WGS 84 longitude,latitude in degrees (geographic or UTM DEMs).
+    #[arg(long, value_name = "LON,LAT", value_parser = parse_point, allow_hyphen_values = true)]
+    to_lonlat: Option<(f64, f64)>,
+    /// Unordered sites to visit, returning to the start (repeat the flag): the order is
+    /// exact (Held-Karp) for up to 10 sites and a local-search heuristic beyond.
+    #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true,
+          conflicts_with_all = ["to", "to_lonlat", "via"])]
+    site: Vec<(f64, f64)>,
+    /// Keep-out areas: GeoJSON Polygon/MultiPolygon features, coordinates in the DEM's CRS
+    /// (or WGS 84 longitude/latitude with --keep-out-lonlat).
+    #[arg(long, value_name = "FILE.geojson")]
+    keep_out: Option<PathBuf>,
+    /// The keep-out file's coordinates are RFC 7946 WGS 84 longitude/latitude.
+    #[arg(long, requires = "keep_out")]
+    keep_out_lonlat: bool,
     /// Waypoints to pass in order (repeat the flag).
     #[arg(long, value_name = "X,Y", value_parser = parse_point, allow_hyphen_values = true)]
     via: Vec<(f64, f64)>,
@@ -170,6 +192,26 @@ fn apply_limits(a: &RouteArgs, rover: &mut Rover) -> Result<TiltLimits, Error> {
     })
 }
 
+/// A WGS 84 longitude/latitude as map coordinates of the DEM: as they are on a
+/// geographic grid, projected on a UTM grid (EPSG 326zz / 327zz), refused otherwise.
+pub fn lonlat_to_map(dem: &Dem, flag: &str, (lon, lat): (f64, f64)) -> Result<(f64, f64), Error> {
+    use sunward::terrain::utm::{forward, UtmZone};
+    let crs = &dem.georef.crs;
+    if crs.kind == sunward::terrain::CrsKind::Geographic {
+        return Ok((lon, lat));
+    }
+    let zone = crs.epsg.and_then(UtmZone::from_epsg).ok_or_else(|| {
+        Error::Usage(format!(
+            "{flag}: the DEM's CRS ({}) is neither geographic nor UTM, so longitude/latitude \
+             cannot be placed on it. Fix: give the point in the DEM's own units",
+            crs.label()
+        ))
+    })?;
+    let p = forward(zone, lat.to_radians(), lon.to_radians())
+        .map_err(|e| Error::Usage(format!("{flag} {lon},{lat}: {e}")))?;
+    Ok((p.easting_m, p.northing_m))
+}
+
 fn cell_flags(dem: &Dem, max_roughness_m: Option<f64>) -> Result<CellFlags, Error> {
     let mut flags = CellFlags::from_dem(dem);
     if let Some(max) = max_roughness_m {
@@ -250,6 +292,75 @@ pub fn profile_csv(route: &Route) -> String {
     out
 }
 
+/// Blocks the cells inside the keep-out polygons of a GeoJSON file.
+fn block_keep_out(
+    dem: &Dem,
+    flags: &mut CellFlags,
+    path: &Path,
+    lonlat: bool,
+) -> Result<(), Error> {
+    use sunward::terrain::mask::{parse_keep_out, rasterise, KeepOutCoords};
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Input {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let coords = if lonlat {
+        KeepOutCoords::Wgs84LonLat
+    } else {
+        KeepOutCoords::GridCrs
+    };
+    let shapes =
+        parse_keep_out(&text, coords, &dem.georef.crs).map_err(|source| Error::KeepOut {
+            path: path.to_path_buf(),
+            source,
+        })?;
+    let mask = rasterise(dem, &shapes);
+    for (i, inside) in mask.data().iter().enumerate() {
+        if *inside {
+            flags.block(i, Blocked::KeepOut);
+        }
+    }
+    Ok(())
+}
+
+/// Orders unordered sites into a tour from the start and back: pairwise route costs by
+/// the planner, then `plan::sites`. Returns the route points in visiting order.
+fn order_tour<M: sunward::plan::StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    base: &RoutePoint,
+    sites: &[RoutePoint],
+) -> Result<(Vec<RoutePoint>, Tour), Error> {
+    use sunward::plan::route::locate;
+    use sunward::plan::sites::{graph_from_matrix, order_sites, OrderOptions};
+    let nodes: Vec<RoutePoint> = std::iter::once(base.clone())
+        .chain(sites.iter().cloned())
+        .collect();
+    let cells: Vec<usize> = nodes
+        .iter()
+        .map(|p| locate(planner, p))
+        .collect::<Result<_, _>>()?;
+    let mut ws = Workspace::default();
+    let n = cells.len();
+    let mut costs = vec![vec![f64::INFINITY; n]; n];
+    for i in 0..n {
+        for j in 0..n {
+            if i != j {
+                if let Ok(p) = planner.search(cells[i], cells[j], &mut ws) {
+                    costs[i][j] = p.cost;
+                }
+            }
+        }
+    }
+    let names: Vec<String> = nodes.iter().map(|p| p.label.clone()).collect();
+    let graph = graph_from_matrix(&costs, Some(&names))?;
+    let tour = order_sites(&graph, &OrderOptions::default())?;
+    let mut ordered: Vec<RoutePoint> = tour.order.iter().map(|&i| nodes[i].clone()).collect();
+    if let Some(last) = ordered.last_mut() {
+        last.label = "start (return)".into();
+    }
+    Ok((ordered, tour))
+}
+
 /// What smoothing changed, for the JSON summary.
 fn smoothing_json(sm: &Smoothed) -> Value {
     json!({
@@ -279,7 +390,10 @@ pub fn run(a: RouteArgs) -> Result<(), Error> {
     let mut rover = load_rover(a.rover.as_deref())?;
     let limits = apply_limits(&a, &mut rover)?;
     let dem = a.dem.load(&a.terrain)?;
-    let flags = cell_flags(&dem, a.max_roughness_m)?;
+    let mut flags = cell_flags(&dem, a.max_roughness_m)?;
+    if let Some(path) = &a.keep_out {
+        block_keep_out(&dem, &mut flags, path, a.keep_out_lonlat)?;
+    }
     let objective = a.objective.objective();
     let planner = Planner {
         dem: &dem,
@@ -289,25 +403,49 @@ pub fn run(a: RouteArgs) -> Result<(), Error> {
         connectivity,
         objective,
     };
-    let mut points = vec![RoutePoint {
-        label: "start".into(),
-        x: a.from.0,
-        y: a.from.1,
-    }];
-    for (i, v) in a.via.iter().enumerate() {
-        points.push(RoutePoint {
-            label: format!("waypoint {}", i + 1),
-            x: v.0,
-            y: v.1,
-        });
+    let from = match (a.from, a.from_lonlat) {
+        (Some(p), _) => p,
+        (None, Some(ll)) => lonlat_to_map(&dem, "--from-lonlat", ll)?,
+        (None, None) => unreachable!("clap requires --from or --from-lonlat"),
+    };
+    let point = |label: String, (x, y): (f64, f64)| RoutePoint { label, x, y };
+    let mut points = vec![point("start".into(), from)];
+    let mut tour = None;
+    if a.site.is_empty() {
+        for (i, v) in a.via.iter().enumerate() {
+            points.push(point(format!("waypoint {}", i + 1), *v));
+        }
+        let to = match (a.to, a.to_lonlat) {
+            (Some(p), _) => p,
+            (None, Some(ll)) => lonlat_to_map(&dem, "--to-lonlat", ll)?,
+            (None, None) => {
+                return Err(Error::Usage(
+                    "give the goal with --to (or --to-lonlat), or sites to visit with --site"
+                        .into(),
+                ))
+            }
+        };
+        points.push(point("goal".into(), to));
+    } else {
+        let sites: Vec<RoutePoint> = a
+            .site
+            .iter()
+            .enumerate()
+            .map(|(i, s)| point(format!("site {}", i + 1), *s))
+            .collect();
+        let (ordered, t) = order_tour(&planner, &points[0], &sites)?;
+        points = ordered;
+        tour = Some(t);
     }
-    points.push(RoutePoint {
-        label: "goal".into(),
-        x: a.to.0,
-        y: a.to.1,
-    });
     let route = plan_route(&planner, &points)?;
     let mut summary = summary_json(&route, objective, &rover, &limits);
+    if let Some(t) = &tour {
+        summary["site_order"] = json!({
+            "visits": points.iter().map(|p| p.label.clone()).collect::<Vec<_>>(),
+            "method": t.method,
+            "cost": t.cost,
+        });
+    }
     let smoothed = a.smooth.then(|| {
         let w = dem.width();
         let cells: Vec<usize> = route.profile.iter().map(|p| p.row * w + p.col).collect();
