@@ -79,7 +79,12 @@ fn stages(loads: Vec<LoadSpec>) -> Stages {
             ..PackParams::default()
         })
         .unwrap(),
-        thermal: ThermalNode::new(&ThermalParams::default()).unwrap(),
+        // A box that sheds 2 W per kelvin: 25 W of electronics warm it by 12.5 K.
+        thermal: ThermalNode::new(&ThermalParams {
+            conductance_w_k: 2.0,
+            ..ThermalParams::default()
+        })
+        .unwrap(),
         loads: Loads::new(loads).unwrap(),
         ambient: mild(),
     }
@@ -283,4 +288,119 @@ fn energy_closes_and_soc_stays_in_bounds_on_a_drive() {
         (drive_wh - want).abs() < 1e-6 * want,
         "drive energy {drive_wh} vs route {want}"
     );
+}
+
+/// Daily budgets add up to the run's ledger, and the verdict of a comfortable summer
+/// traverse is feasible with margin = min SOC − reserve.
+#[test]
+fn daily_budgets_add_up_and_summer_is_feasible() {
+    use sunward::mission::ledger::daily_budgets;
+    use sunward::mission::verdict::summarize;
+    let dem = flat(60);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (10.0, -10.0), (110.0, -100.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(45f64.to_radians(), 7f64.to_radians(), 300.0).unwrap();
+    let policy = Policy {
+        deadline_s: 2.0 * 86_400.0,
+        end: EndCondition::Deadline,
+        ..parked_day()
+    };
+    let run = simulate(
+        &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.9),
+        midnight("2031-06-21"),
+    )
+    .unwrap();
+    let days = daily_budgets(&run.samples, 60.0, 0, 0.9);
+    assert_eq!(days.len(), 2);
+    let mut total = sunward::mission::ledger::Ledger::default();
+    for d in &days {
+        total.add(&d.ledger);
+    }
+    for (a, b) in [
+        (total.generated_wh, run.ledger.generated_wh),
+        (total.drive_wh, run.ledger.drive_wh),
+        (total.hotel_wh, run.ledger.hotel_wh),
+        (total.stored_delta_wh, run.ledger.stored_delta_wh),
+    ] {
+        assert!((a - b).abs() < 1e-6, "{a} vs {b}");
+    }
+    assert_eq!(days[1].soc_start, days[0].soc_end);
+    let sum = summarize(
+        "summer",
+        NaiveDate::from_ymd_opt(2031, 6, 21).unwrap(),
+        &run,
+        0.2,
+        route.summary.length_m,
+    );
+    assert!(sum.feasible, "{}", sum.reason);
+    assert!((sum.margin - (run.min_soc.0 - 0.2)).abs() < 1e-12);
+    assert!(sum.reason.starts_with("arrived at 2031-06-21"));
+}
+
+/// Polar night strands a rover that must stay awake: at 80° N on 21 December there is no
+/// light, the hotel load drains a small pack, and the cause is light. In −30 °C air the
+/// same rover's heater dominates and the cause is heat.
+#[test]
+fn polar_night_and_cold_strand_for_their_reasons() {
+    use sunward::mission::verdict::summarize;
+    let dem = flat(5);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (5.0, -5.0), (5.0, -5.0));
+    let small = |ambient_c: f64| Stages {
+        pack: Pack::new(&PackParams {
+            capacity_wh: Some(200.0),
+            nominal_voltage_v: Some(25.6),
+            ..PackParams::default()
+        })
+        .unwrap(),
+        thermal: ThermalNode::new(&ThermalParams {
+            heater_power_w: 40.0,
+            conductance_w_k: 2.0,
+            ..ThermalParams::default()
+        })
+        .unwrap(),
+        loads: Loads::new(Vec::new()).unwrap(),
+        ambient: Ambient::Monthly(MonthlyClimate {
+            mean_c: [ambient_c; 12],
+            diurnal_swing_c: [0.0; 12],
+            peak_hour: 15.0,
+        }),
+    };
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(80f64.to_radians(), 15f64.to_radians(), 0.0).unwrap();
+    let policy = Policy {
+        deadline_s: 5.0 * 86_400.0,
+        end: EndCondition::Deadline,
+        ..parked_day()
+    };
+    let dark = small(15.0);
+    let run = simulate(
+        &setup(&route, &rover, &dark, &panel, obs, 3.0, policy, 0.9),
+        midnight("2031-12-21"),
+    )
+    .unwrap();
+    let st = run.stranded.as_ref().expect("stranded in the dark");
+    assert_eq!(st.cause, "light");
+    // 200 Wh × (0.9 − 0) at 25 W of hotel: about 7 h.
+    let hours = (st.time - midnight("2031-12-21")).num_minutes() as f64 / 60.0;
+    assert!((5.0..9.0).contains(&hours), "stranded after {hours} h");
+    let sum = summarize(
+        "winter",
+        NaiveDate::from_ymd_opt(2031, 12, 21).unwrap(),
+        &run,
+        0.2,
+        0.0,
+    );
+    assert!(
+        !sum.feasible && sum.reason.contains("lack of light"),
+        "{}",
+        sum.reason
+    );
+    let cold = small(-30.0);
+    let mut set = setup(&route, &rover, &cold, &panel, obs, 3.0, policy, 0.9);
+    set.initial_box_temp_c = Some(6.0);
+    let run = simulate(&set, midnight("2031-12-21")).unwrap();
+    assert_eq!(run.stranded.expect("stranded in the cold").cause, "heat");
 }

@@ -72,3 +72,68 @@ impl Ledger {
         self.stored_delta_wh += o.stored_delta_wh;
     }
 }
+
+/// One local day of a run (a row of daily-budget.csv).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct DayBudget {
+    /// Local calendar date.
+    pub date: chrono::NaiveDate,
+    /// Energy by category over the day, Wh.
+    pub ledger: Ledger,
+    /// State of charge at the start of the day's first step.
+    pub soc_start: f64,
+    /// Lowest state of charge of the day.
+    pub soc_min: f64,
+    /// State of charge at the end of the day's last step.
+    pub soc_end: f64,
+}
+
+impl DayBudget {
+    /// Generated minus consumed minus losses, Wh.
+    pub fn net_wh(&self) -> f64 {
+        self.ledger.generated_wh
+            - self.ledger.curtailed_wh
+            - self.ledger.consumed_wh()
+            - self.ledger.losses_wh
+    }
+}
+
+/// Daily budgets by local date from a run's samples (`step_s` apart, the clock
+/// `utc_offset_s` ahead of UTC); `initial_soc` is the state before the first sample.
+pub fn daily_budgets(
+    samples: &[crate::mission::sim::Sample],
+    step_s: f64,
+    utc_offset_s: i64,
+    initial_soc: f64,
+) -> Vec<DayBudget> {
+    let h = step_s / 3600.0;
+    let mut days: Vec<DayBudget> = Vec::new();
+    let mut prev_soc = initial_soc;
+    for s in samples {
+        let date = (s.time + chrono::Duration::seconds(utc_offset_s)).date_naive();
+        if days.last().is_none_or(|d| d.date != date) {
+            days.push(DayBudget {
+                date,
+                ledger: Ledger::default(),
+                soc_start: prev_soc,
+                soc_min: prev_soc,
+                soc_end: prev_soc,
+            });
+        }
+        let d = days.last_mut().expect("just pushed");
+        d.ledger.add(&Ledger {
+            generated_wh: s.generated_w * h,
+            curtailed_wh: s.curtailed_w * h,
+            drive_wh: s.drive_w * h,
+            hotel_wh: s.hotel_w * h,
+            payload_wh: s.payload_w * h,
+            heater_wh: s.heater_w * h,
+            losses_wh: s.losses_w * h,
+            stored_delta_wh: s.stored_delta_wh,
+        });
+        d.soc_min = d.soc_min.min(s.soc);
+        d.soc_end = s.soc;
+        prev_soc = s.soc;
+    }
+    days
+}

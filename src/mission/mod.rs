@@ -2,6 +2,10 @@
 //!
 //! - [`sim`]: the one orchestrator (drive, park, charge, sleep).
 //! - [`ledger`]: energy bookkeeping that closes.
+//! - [`verdict`]: a season's verdict and margin.
+//! - [`seasons`]: equinox and solstice dates named for the hemisphere.
 
 pub mod ledger;
+pub mod seasons;
 pub mod sim;
+pub mod verdict;

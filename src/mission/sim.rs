@@ -152,8 +152,10 @@ pub struct Stranded {
     pub x: f64,
     /// Map y of the rover.
     pub y: f64,
-    /// `light` or `heat`.
+    /// `light` or `heat` (the pack's temperature or the heater's draw).
     pub cause: &'static str,
+    /// What happened, in words.
+    pub detail: String,
 }
 
 /// One recorded step.
@@ -179,6 +181,10 @@ pub struct Sample {
     pub heater_w: f64,
     /// Pack losses, W.
     pub losses_w: f64,
+    /// Solar power the pack could not accept, W.
+    pub curtailed_w: f64,
+    /// Change of the pack's stored energy in the step, Wh.
+    pub stored_delta_wh: f64,
     /// State of charge at the end of the step.
     pub soc: f64,
     /// Battery box temperature at the end of the step, °C.
@@ -453,11 +459,13 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
                 Activity::Driving => 2,
             },
             generated_w: gen_w,
-            drive_w,
-            hotel_w,
-            payload_w,
-            heater_w,
+            drive_w: drive_w * served,
+            hotel_w: hotel_w * served,
+            payload_w: payload_w * served,
+            heater_w: heater_w * served,
             losses_w: last_loss_w,
+            curtailed_w: ps.unaccepted_w,
+            stored_delta_wh: ps.stored_delta_wh,
             soc: pack_state.soc,
             box_temp_c: box_state.temp_c,
             ambient_c: air_c,
@@ -467,17 +475,56 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             let (heater, used) = day_window
                 .iter()
                 .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
-            let heat = ps.flags.discharge_blocked_temp || (used > 0.0 && heater >= 0.25 * used);
-            run.stranded = Some(Stranded {
-                time: t,
-                x: here.x,
-                y: here.y,
-                cause: if heat { "heat" } else { "light" },
-            });
+            run.stranded = Some(stranding(t, here, &ps, box_state.temp_c, heater, used));
             break;
         }
     }
     Ok(run)
+}
+
+/// Why the rover ran out (module doc: `heat` or `light`).
+fn stranding(
+    t: DateTime<Utc>,
+    here: &crate::plan::ProfileRow,
+    ps: &crate::battery::pack::PackStep,
+    box_c: f64,
+    heater_wh: f64,
+    used_wh: f64,
+) -> Stranded {
+    let heater_share = if used_wh > 0.0 {
+        heater_wh / used_wh
+    } else {
+        0.0
+    };
+    let (cause, detail) = if ps.flags.discharge_blocked_temp {
+        (
+            "heat",
+            format!("the pack at {box_c:.1} °C is outside its discharge temperature range"),
+        )
+    } else if heater_share >= 0.25 {
+        (
+            "heat",
+            format!(
+                "the heater drew {:.0} % of the energy used in the last 24 h",
+                100.0 * heater_share
+            ),
+        )
+    } else {
+        (
+            "light",
+            format!(
+                "the panels could not keep up: the pack reached its floor at {:.0} % state of charge",
+                100.0 * ps.state.soc
+            ),
+        )
+    };
+    Stranded {
+        time: t,
+        x: here.x,
+        y: here.y,
+        cause,
+        detail,
+    }
 }
 
 /// Advances along the profile for up to `dt` seconds; returns (drive energy J, seconds
