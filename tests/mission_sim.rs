@@ -404,3 +404,58 @@ fn polar_night_and_cold_strand_for_their_reasons() {
     let run = simulate(&set, midnight("2031-12-21")).unwrap();
     assert_eq!(run.stranded.expect("stranded in the cold").cause, "heat");
 }
+
+/// Four seasons at 70° N on the Vardholm plateau: the summer traverse arrives; in winter
+/// (polar night: the Sun stays below the horizon at 70° N in late December, since
+/// 90° − 70° − 23.4° < 0) a daylight-only rover never gets to drive. Results do not depend on the number of threads, and the
+/// time-series CSV has one row per step.
+#[test]
+fn seasons_at_70_north_summer_passes_winter_cannot_drive() {
+    use sunward::mission::runner::run_seasons;
+    use sunward::mission::seasons::default_seasons;
+    let dem = sunward::terrain::io::read_dem(
+        std::path::Path::new(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/terrains/vardholm_plateau.tif"
+        )),
+        &Default::default(),
+    )
+    .unwrap();
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (220.0, 260.0), (1820.0, 1760.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(70.2f64.to_radians(), 24f64.to_radians(), 450.0).unwrap();
+    let policy = Policy {
+        drive_hours: DriveHours::Daylight,
+        min_soc_to_drive: 0.4,
+        resume_soc: 0.6,
+        deadline_s: 4.0 * 86_400.0,
+        end: EndCondition::Arrival,
+    };
+    let set = setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.6);
+    let seasons = default_seasons(2031, 70.2);
+    let results = run_seasons(&set, &seasons).unwrap();
+    let by = |name: &str| results.iter().find(|r| r.season.name == name).unwrap();
+    assert!(
+        by("summer").summary.feasible,
+        "{}",
+        by("summer").summary.reason
+    );
+    let winter = &by("winter").summary;
+    assert!(!winter.feasible);
+    assert!(
+        winter.reason.contains("no driving hours"),
+        "{}",
+        winter.reason
+    );
+    assert_eq!(by("winter").run.distance_m, 0.0);
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .unwrap();
+    let again = one.install(|| run_seasons(&set, &seasons).unwrap());
+    assert_eq!(results, again, "thread count changed the results");
+    let csv = sunward::report::csv::timeseries_csv(&by("summer").run.samples);
+    assert_eq!(csv.lines().count(), by("summer").run.samples.len() + 1);
+}

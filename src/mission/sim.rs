@@ -214,6 +214,10 @@ pub struct Run {
     pub storage_breach: Option<DateTime<Utc>>,
     /// Route distance covered, metres.
     pub distance_m: f64,
+    /// Seconds inside the policy's driving hours.
+    pub in_hours_s: f64,
+    /// Seconds parked inside the driving hours waiting for charge.
+    pub charging_hold_s: f64,
 }
 
 /// Where the rover is on the route: the index of the profile row it is heading to and the
@@ -313,6 +317,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         hours_below_reserve: 0.0,
         storage_breach: None,
         distance_m: 0.0,
+        in_hours_s: 0.0,
+        charging_hold_s: 0.0,
     };
     let reserve = setup.pack.params().reserve_soc;
     let dt = setup.step_s;
@@ -349,6 +355,12 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             charge_hold = true;
             Activity::Parked
         };
+        if in_hours && !arrived {
+            run.in_hours_s += dt;
+            if activity == Activity::Parked {
+                run.charging_hold_s += dt;
+            }
+        }
         // Drive.
         let (drive_j, drive_s) = if activity == Activity::Driving {
             drive(setup, &mut prog, dt, &mut run.distance_m)

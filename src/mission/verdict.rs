@@ -99,9 +99,17 @@ pub fn summarize(
             },
             s.detail
         ),
-        (None, None, _) => format!(
-            "did not arrive by the deadline: {:.0} of {:.0} m driven",
+        (None, None, _) if run.in_hours_s == 0.0 => format!(
+            "did not arrive: no driving hours in the whole run (under a daylight-only policy \
+             this is polar night), {:.0} of {:.0} m driven",
             run.distance_m, route_length_m
+        ),
+        (None, None, _) => format!(
+            "did not arrive by the deadline: {:.0} of {:.0} m driven; {:.1} h of the driving \
+             hours were spent parked, waiting for charge",
+            run.distance_m,
+            route_length_m,
+            run.charging_hold_s / 3600.0
         ),
         (None, Some(_), Some(t)) => format!(
             "the battery box fell below its storage minimum at {}",

@@ -424,9 +424,9 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let cs = self.dem.cell_size();
         let w = self.dem.width();
         let (gc, gr) = ((goal % w) as f64, (goal / w) as f64);
-        let heuristic = |v: usize| -> f64 {
-            let dx = ((v % w) as f64 - gc) * cs.dx_m;
-            let dy = ((v / w) as f64 - gr) * cs.dy_m;
+        let heuristic = |v: usize, col: i64, row: i64| -> f64 {
+            let dx = (col as f64 - gc) * cs.dx_m;
+            let dy = (row as f64 - gr) * cs.dy_m;
             let dz = z_goal - self.z(v);
             let b = self
                 .objective
@@ -434,7 +434,10 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             (b - k * dz).max(0.0)
         };
         ws.g[start] = 0.0;
-        ws.heap.push(heuristic(start), start as u32);
+        ws.heap.push(
+            heuristic(start, (start % w) as i64, (start / w) as i64),
+            start as u32,
+        );
         let mut expanded = 0u64;
         while let Some((_, u32v)) = ws.heap.pop() {
             let u = u32v as usize;
@@ -467,7 +470,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 if gv < ws.g[v] {
                     ws.g[v] = gv;
                     ws.state[v] = dir as u8;
-                    ws.heap.push(gv + heuristic(v), v as u32);
+                    ws.heap
+                        .push(gv + heuristic(v, at.col + di.dc, at.row + di.dr), v as u32);
                 }
             }
         }

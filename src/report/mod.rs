@@ -1,4 +1,5 @@
 //! Reports and output files: pure serialisers plus one atomic writer.
 
 pub mod atomic;
+pub mod csv;
 pub mod map;

@@ -1,0 +1,71 @@
+//! Runs one simulation per season (in parallel; each season is independent) and gives
+//! each its verdict and daily budgets.
+//!
+//! A season starts at local midnight of its date (the site's clock, `utc_offset_s`) and
+//! runs until arrival, stranding or the policy's deadline.
+//!
+//! # Units
+//! Seconds; dates are local calendar dates.
+
+use chrono::{DateTime, Duration, NaiveDate, Utc};
+use rayon::prelude::*;
+
+use crate::mission::ledger::{daily_budgets, DayBudget};
+use crate::mission::seasons::Season;
+use crate::mission::sim::{simulate, Run, SimError, SimSetup};
+use crate::mission::verdict::{summarize, SeasonSummary};
+
+/// One season's outcome.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SeasonResult {
+    /// The season.
+    pub season: Season,
+    /// The full run.
+    pub run: Run,
+    /// Verdict and totals.
+    pub summary: SeasonSummary,
+    /// Day-by-day budgets.
+    pub days: Vec<DayBudget>,
+}
+
+/// Local midnight of `date` at a site whose clock runs `utc_offset_s` ahead of UTC.
+pub fn local_midnight(date: NaiveDate, utc_offset_s: i64) -> DateTime<Utc> {
+    date.and_hms_opt(0, 0, 0)
+        .expect("midnight exists")
+        .and_utc()
+        - Duration::seconds(utc_offset_s)
+}
+
+/// Simulates every season with the same setup. Results come back in the seasons' order
+/// whatever the number of threads.
+pub fn run_seasons(
+    setup: &SimSetup<'_>,
+    seasons: &[Season],
+) -> Result<Vec<SeasonResult>, SimError> {
+    let reserve = setup.pack.params().reserve_soc;
+    seasons
+        .par_iter()
+        .map(|season| {
+            let run = simulate(setup, local_midnight(season.date, setup.utc_offset_s))?;
+            let summary = summarize(
+                &season.name,
+                season.date,
+                &run,
+                reserve,
+                setup.route.summary.length_m,
+            );
+            let days = daily_budgets(
+                &run.samples,
+                setup.step_s,
+                setup.utc_offset_s,
+                setup.initial_soc,
+            );
+            Ok(SeasonResult {
+                season: season.clone(),
+                run,
+                summary,
+                days,
+            })
+        })
+        .collect()
+}
