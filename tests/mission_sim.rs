@@ -456,6 +456,40 @@ fn seasons_at_70_north_summer_passes_winter_cannot_drive() {
         .unwrap();
     let again = one.install(|| run_seasons(&set, &seasons).unwrap());
     assert_eq!(results, again, "thread count changed the results");
+    let doc = sunward::report::json::summary("Vardholm survey", &results, serde_json::json!({}));
+    let v: serde_json::Value =
+        serde_json::from_str(&sunward::report::json::summary_json(&doc)).unwrap();
+    assert_eq!(v["schema_version"], 1);
+    assert_eq!(v["feasible"], false);
+    let keys = [
+        "name",
+        "date",
+        "feasible",
+        "arrival_time",
+        "stranded",
+        "min_soc",
+        "min_soc_time",
+        "hours_below_reserve",
+        "energy_generated_wh",
+        "energy_consumed_wh",
+        "margin",
+    ];
+    for season in v["seasons"].as_array().unwrap() {
+        for k in keys {
+            assert!(season.get(k).is_some(), "season lacks {k}");
+        }
+        for k in ["drive", "hotel", "payload", "heater", "losses"] {
+            assert!(
+                season["energy_consumed_wh"][k].is_number(),
+                "energy_consumed_wh lacks {k}"
+            );
+        }
+    }
+    assert_eq!(v["seasons"][1]["name"], "summer");
+    assert!(v["seasons"][1]["arrival_time"]
+        .as_str()
+        .unwrap()
+        .starts_with("2031-06-2"));
     let csv = sunward::report::csv::timeseries_csv(&by("summer").run.samples);
     assert_eq!(csv.lines().count(), by("summer").run.samples.len() + 1);
 }

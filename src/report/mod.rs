@@ -2,4 +2,5 @@
 
 pub mod atomic;
 pub mod csv;
+pub mod json;
 pub mod map;
