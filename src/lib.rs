@@ -48,6 +48,8 @@
 //! - [`battery::ambient`]: air temperature from monthly means or a series.
 //! - [`battery::loads`]: named loads and their schedules.
 //! - [`battery::ageing`]: equivalent full cycles and rainflow damage.
+//! - [`mission::spec`]: the mission file as written, every key checked alone.
+//! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
@@ -59,6 +61,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod mission;
 pub mod plan;
 pub mod progress;
 pub mod report;

@@ -1,0 +1,43 @@
+//! The mission: one file that names the site, terrain, route, rover, panels, battery,
+//! loads, weather, operating rules and seasons, read in two steps.
+//!
+//! - [`spec`]: TOML text → a raw mirror of the file with the place of every value;
+//!   each key checked alone (known, right type, in range).
+//! - [`resolve`]: raw → a checked [`Mission`] of the stages' own types; fields checked
+//!   against each other and by the stages' own validation; input files looked up
+//!   through a closure the caller passes (this module reads no file).
+//!
+//! [`check`] does both and returns every problem found, sorted by line and column.
+//! The simulation that runs a [`Mission`] is built on top of these types.
+
+pub mod resolve;
+pub mod spec;
+
+use std::path::Path;
+
+pub use resolve::{Mission, Season};
+pub use spec::Problem;
+
+/// Parses and resolves a mission file's `text`. `base` is the folder of the mission
+/// file (input paths are relative to it); `exists` says whether an input file exists.
+/// Returns the mission, or every problem found by both steps, sorted by position.
+pub fn check(
+    text: &str,
+    base: &Path,
+    exists: &dyn Fn(&Path) -> bool,
+) -> Result<Mission, Vec<Problem>> {
+    let (raw, mut problems) = spec::parse(text);
+    let syntax_failed = problems.iter().any(|p| p.key == "(file)");
+    if syntax_failed {
+        return Err(problems);
+    }
+    match resolve::resolve(&raw, text, base, exists) {
+        Ok(m) if problems.is_empty() => Ok(m),
+        Ok(_) => Err(problems),
+        Err(more) => {
+            problems.extend(more);
+            spec::sort_problems(&mut problems);
+            Err(problems)
+        }
+    }
+}
