@@ -1060,8 +1060,7 @@ fn read_load<'i>(
         Ok(s) => Some(s),
         Err(e) => {
             if out.list.len() == before {
-                let detail = e.message().trim().to_string();
-                out.add(key, Some(table.header.clone()), detail, load_fix().into());
+                load_problem(key, &table, e.message(), out);
             }
             None
         }
@@ -1071,6 +1070,24 @@ fn read_load<'i>(
         key: key.to_string(),
         table,
     })
+}
+
+/// Places the load stage's message: at `when` when the schedule is unknown, else at
+/// the load's table; the stage's `load "NAME": ` prefix is dropped (the key names it).
+fn load_problem(key: &str, table: &StageTable<'_>, message: &str, out: &mut Problems<'_>) {
+    let message = message.trim();
+    let detail = match message.strip_prefix("load \"") {
+        Some(rest) => rest.split_once("\": ").map_or(message, |(_, d)| d),
+        None => message,
+    };
+    let when = table
+        .span_of("when")
+        .filter(|_| detail.starts_with("unknown when"));
+    let (key, span) = match when {
+        Some(span) => (format!("{key}.when"), span),
+        None => (key.to_string(), table.header.clone()),
+    };
+    out.add(&key, Some(span), detail.to_string(), load_fix().into());
 }
 
 fn load_fix() -> &'static str {
