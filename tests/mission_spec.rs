@@ -279,6 +279,30 @@ fn load_range_comes_from_the_load_stage() {
 }
 
 #[test]
+fn survival_load_must_exist() {
+    let text = format!(
+        "{BASE}[loads.watchdog]\npower_w = 2.0\nwhen = \"asleep\"\n[policy]\nsurvival_loads = [\"watchdg\"]\n"
+    );
+    check_one(
+        &text,
+        "m.toml:19:19: policy.survival_loads: no load is named \"watchdg\" (did you mean \
+         \"watchdog\"?). Fix: name loads defined under [loads]",
+    );
+}
+
+#[test]
+fn survival_load_must_be_on_while_asleep() {
+    let text = format!(
+        "{BASE}[loads.lamp]\npower_w = 2.0\nwhen = \"driving\"\n[policy]\nsurvival_loads = [\"lamp\"]\n"
+    );
+    check_one(
+        &text,
+        "m.toml:19:19: policy.survival_loads: load \"lamp\" is not on while the rover \
+         sleeps. Fix: schedule it with when = \"asleep\" or \"always\"",
+    );
+}
+
+#[test]
 fn toml_syntax_error_has_its_place() {
     // The parser stops at the second decimal point, column 14.
     let text = BASE.replace("lon_deg = 5.0", "lon_deg = 5.0.1");
@@ -434,6 +458,32 @@ fn points_outside_the_terrain_are_placed() {
             "m.toml:8:10: route.goal_m: goal (5000, 50) lies outside the terrain, which spans \
              x 0 to 256 and y 0 to 256. Fix: give map coordinates inside the terrain (see \
              `sunward terrain info`)"
+        ]
+    );
+}
+
+#[test]
+fn each_waypoint_off_the_terrain_is_placed_on_its_own() {
+    let text = BASE.replace(
+        "goal_m = [50.0, 50.0]",
+        "goal_m = [50.0, 50.0]\nwaypoints_m = [[20.0, 20.0], [20.0, -3.0]]",
+    );
+    let m = resolve(&text).unwrap();
+    let dem = read_dem(
+        &Path::new(env!("CARGO_MANIFEST_DIR")).join("terrains/tallowby_hillside.tif"),
+        &Default::default(),
+    )
+    .unwrap();
+    let off: Vec<String> = points_off_dem(&m.route, &dem)
+        .iter()
+        .map(|p| p.render("m.toml"))
+        .collect();
+    assert_eq!(
+        off,
+        vec![
+            "m.toml:9:30: route.waypoints_m[1]: waypoint 2 (20, -3) lies outside the \
+             terrain, which spans x 0 to 256 and y 0 to 256. Fix: give map coordinates \
+             inside the terrain (see `sunward terrain info`)"
         ]
     );
 }

@@ -28,7 +28,7 @@ use std::path::{Path, PathBuf};
 use chrono::{DateTime, Datelike, Duration, FixedOffset, NaiveDate, TimeZone, Utc};
 
 use crate::battery::ambient::MonthlyClimate;
-use crate::battery::loads::{LoadSpec, Loads};
+use crate::battery::loads::{LoadSpec, Loads, Schedule};
 use crate::battery::thermal::{ThermalNode, ThermalParams};
 use crate::battery::{BatteryError, Pack, PackParams};
 use crate::mission::spec::{
@@ -189,7 +189,7 @@ pub enum Overnight {
 }
 
 /// Operating rules.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Policy {
     /// Driving hours.
     pub driving: DrivingHours,
@@ -201,6 +201,8 @@ pub struct Policy {
     pub overnight: Overnight,
     /// The mission fails if not arrived after this long, s.
     pub deadline_s: f64,
+    /// Loads the rover needs to survive the night (each on while asleep).
+    pub survival_loads: Vec<String>,
 }
 
 /// One simulated season.
@@ -385,7 +387,7 @@ fn build(
     let thermal = thermal(raw.thermal.as_ref(), out);
     let loads = loads(&raw.loads, out);
     let weather = weather(raw, base, exists, out);
-    let policy = policy(raw, battery.as_ref(), out);
+    let policy = policy(raw, battery.as_ref(), loads.as_ref(), out);
     let seasons = seasons(raw, site.as_ref(), out);
     let step_s = get(&raw.simulation.step_s).unwrap_or(defaults::STEP_S);
     let start_local_h = get(&raw.simulation.start_local_h).unwrap_or(defaults::START_LOCAL_H);
@@ -637,7 +639,10 @@ fn route(raw: &RawMission<'_>, rover: Option<&Rover>, out: &mut Out<'_>) -> Opti
         .waypoints_m
         .iter()
         .enumerate()
-        .map(|(i, w)| place(format!("waypoint {}", i + 1), "route.waypoints_m", w, out))
+        .map(|(i, w)| {
+            let key = format!("route.waypoints_m[{i}]");
+            place(format!("waypoint {}", i + 1), &key, w, out)
+        })
         .collect();
     let sites = visit_sites(raw, out);
     let objective = match get(&r.objective).as_deref() {
@@ -1144,7 +1149,12 @@ fn climate(w: &crate::mission::spec::WeatherRaw, out: &mut Out<'_>) -> Option<Mo
     Some(c)
 }
 
-fn policy(raw: &RawMission<'_>, battery: Option<&PackParams>, out: &mut Out<'_>) -> Option<Policy> {
+fn policy(
+    raw: &RawMission<'_>,
+    battery: Option<&PackParams>,
+    loads: Option<&Loads>,
+    out: &mut Out<'_>,
+) -> Option<Policy> {
     let p = &raw.policy;
     let driving = match get(&p.driving).as_deref() {
         Some("window") => {
@@ -1177,8 +1187,45 @@ fn policy(raw: &RawMission<'_>, battery: Option<&PackParams>, out: &mut Out<'_>)
             _ => Overnight::Sleep,
         },
         deadline_s: 86_400.0 * get(&p.deadline_days).unwrap_or(defaults::DEADLINE_DAYS),
+        survival_loads: p
+            .survival_loads
+            .iter()
+            .map(|n| n.get_ref().clone())
+            .collect(),
     };
-    soc_consistency(raw, &policy, battery, out).then_some(policy)
+    let socs_ok = soc_consistency(raw, &policy, battery, out);
+    let loads_ok = loads.is_none_or(|l| survival_loads_ok(raw, l, out));
+    (socs_ok && loads_ok).then_some(policy)
+}
+
+/// Each survival load exists and is on while the rover sleeps.
+fn survival_loads_ok(raw: &RawMission<'_>, loads: &Loads, out: &mut Out<'_>) -> bool {
+    let names: Vec<&str> = loads.specs().iter().map(|s| s.name.as_str()).collect();
+    let mut ok = true;
+    for n in &raw.policy.survival_loads {
+        let Some(spec) = loads.specs().iter().find(|s| &s.name == n.get_ref()) else {
+            let hint = crate::mission::spec::nearest(n.get_ref(), &names)
+                .map_or(String::new(), |k| format!(" (did you mean \"{k}\"?)"));
+            out.add(
+                "policy.survival_loads",
+                Some(n.span()),
+                format!("no load is named \"{}\"{hint}", n.get_ref()),
+                "name loads defined under [loads]".into(),
+            );
+            ok = false;
+            continue;
+        };
+        if !matches!(spec.schedule, Schedule::Asleep | Schedule::Always) {
+            out.add(
+                "policy.survival_loads",
+                Some(n.span()),
+                format!("load \"{}\" is not on while the rover sleeps", n.get_ref()),
+                "schedule it with when = \"asleep\" or \"always\"".into(),
+            );
+            ok = false;
+        }
+    }
+    ok
 }
 
 /// reserve_soc (battery) < park_and_charge_to_soc, min_soc_to_drive <= park_and_charge_to_soc,

@@ -215,6 +215,7 @@ pub struct PolicyRaw {
     pub park_and_charge_to_soc: Option<Val<f64>>,
     pub overnight: Option<Val<String>>,
     pub deadline_days: Option<Val<f64>>,
+    pub survival_loads: Vec<Val<String>>,
 }
 
 /// `[seasons]`.
@@ -824,17 +825,16 @@ fn read_connectivity(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Option<V
 }
 
 fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f64; 2]>> {
-    let v = t.typed::<Vec<[f64; 2]>>(
+    let v = t.typed::<Vec<Spanned<[f64; 2]>>>(
         "waypoints_m",
         "an array of points [[x, y], ...]",
         "[[100.0, 250.0], [400.0, 300.0]]",
         out,
     );
     let Some(v) = v else { return Vec::new() };
-    let span = v.span();
     v.into_inner()
         .into_iter()
-        .filter_map(|p| t.finite_point("waypoints_m", Spanned::new(span.clone(), p), out))
+        .filter_map(|p| t.finite_point("waypoints_m", p, out))
         .collect()
 }
 
@@ -952,6 +952,14 @@ fn read_policy(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> PolicyRaw {
         park_and_charge_to_soc: t.num("park_and_charge_to_soc", Interval::open_lo(0.0, 1.0), out),
         overnight: t.choice("overnight", &OVERNIGHT, out),
         deadline_days: t.num("deadline_days", Interval::open_lo(0.0, 366.0), out),
+        survival_loads: t
+            .typed::<Vec<Spanned<String>>>(
+                "survival_loads",
+                "an array of load names",
+                "[\"watchdog\"]",
+                out,
+            )
+            .map_or(Vec::new(), Spanned::into_inner),
     }
 }
 
