@@ -8,7 +8,8 @@ use assert_cmd::Command;
 use chrono::{DateTime, FixedOffset, NaiveDate, Utc};
 
 use sunward::mission::resolve::{
-    parse_utc_offset, points_off_dem, solar_longitude_instant, solstices_equinoxes,
+    keep_out_off_grid, parse_utc_offset, points_off_dem, solar_longitude_instant,
+    solstices_equinoxes,
 };
 use sunward::mission::{check, Mission};
 use sunward::terrain::io::read_dem;
@@ -324,6 +325,53 @@ fn a_bad_date_in_the_list_is_placed() {
         "m.toml:17:24: seasons.dates: \"2027-13-01\" is not a date YYYY-MM-DD. Fix: write \
          the date as \"2027-06-21\"",
     );
+}
+
+#[test]
+fn listed_dates_accept_quoted_and_bare_dates_and_sort_them() {
+    let text = format!("{BASE}[seasons]\nmode = \"dates\"\ndates = [\"2027-12-01\", 2027-06-21]\n");
+    let m = resolve(&text).unwrap();
+    let dates: Vec<String> = m.seasons.iter().map(|s| s.date.to_string()).collect();
+    assert_eq!(dates, ["2027-06-21", "2027-12-01"]);
+}
+
+#[test]
+fn year_does_not_apply_to_listed_dates() {
+    let text =
+        format!("{BASE}[seasons]\nmode = \"dates\"\nyear = 2027\ndates = [\"2027-12-01\"]\n");
+    check_one(
+        &text,
+        "m.toml:17:8: seasons.year: does not apply to mode = \"dates\". Fix: remove it, or \
+         choose the mode it belongs to",
+    );
+}
+
+#[test]
+fn keep_out_on_another_grid_is_refused() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let text = BASE.replace(
+        "file = \"dem.tif\"",
+        "file = \"dem.tif\"\nkeep_out = \"dem.tif\"",
+    );
+    let m = resolve(&text).unwrap();
+    let dem = read_dem(
+        &root.join("terrains/tallowby_hillside.tif"),
+        &Default::default(),
+    )
+    .unwrap();
+    let mask = read_dem(
+        &root.join("terrains/vardholm_plateau.tif"),
+        &Default::default(),
+    )
+    .unwrap();
+    let p = keep_out_off_grid(&m.terrain, &dem, &mask).expect("a problem");
+    assert_eq!(
+        p.render("m.toml"),
+        "m.toml:6:12: terrain.keep_out: the keep-out raster (512 x 512 cells, origin (0, \
+         2048), cells 4 m) is not on the DEM's grid (256 x 256 cells, origin (0, 256), cells 1 \
+         m). Fix: make the mask from the DEM itself (same size, origin and cell size)"
+    );
+    assert!(keep_out_off_grid(&m.terrain, &dem, &dem).is_none());
 }
 
 #[test]

@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
-use sunward::mission::resolve::{points_off_dem, DrivingHours, Mission, Sky};
+use sunward::mission::resolve::{keep_out_off_grid, points_off_dem, DrivingHours, Mission, Sky};
 use sunward::mission::{check, Problem};
 use sunward::terrain::io::read_dem;
 use sunward::units::rad_to_deg;
@@ -34,7 +34,11 @@ pub fn run(a: CheckArgs) -> Result<(), Error> {
     };
     let mission = check(&text, &base, &exists).map_err(fail)?;
     let dem = read_dem(&mission.terrain.dem_path, &mission.terrain.read)?;
-    let off = points_off_dem(&mission.route, &dem);
+    let mut off = points_off_dem(&mission.route, &dem);
+    if let Some(mask_path) = &mission.terrain.keep_out_path {
+        let mask = read_dem(mask_path, &mission.terrain.read)?;
+        off.extend(keep_out_off_grid(&mission.terrain, &dem, &mask));
+    }
     if !off.is_empty() {
         return Err(fail(off));
     }

@@ -68,6 +68,8 @@ pub struct TerrainInput {
     pub read: ReadOptions,
     /// Keep-out raster on the DEM's grid (cells with data are closed), if any.
     pub keep_out_path: Option<PathBuf>,
+    /// Where `keep_out` is written in the file.
+    pub keep_out_at: Option<TextPos>,
 }
 
 /// A point of the route with its place in the mission text.
@@ -544,7 +546,9 @@ fn terrain(
         max_cells: get(&t.max_cells).map_or(DEFAULT_MAX_CELLS, |n| n as u64),
         png: png?,
     };
+    let keep_out_at = out.at(t.keep_out.as_ref().map(|k| k.span()));
     Some(TerrainInput {
+        keep_out_at,
         dem_path: dem_path?,
         read,
         keep_out_path: keep_out_path.map_or(Some(None), |p| p.map(Some))?,
@@ -1431,6 +1435,44 @@ pub fn solar_longitude_instant(year: i32, quarter: u32) -> DateTime<Utc> {
         }
     }
     lo + (hi - lo) / 2
+}
+
+/// A keep-out raster that is not on the DEM's grid, as a problem at `terrain.keep_out`
+/// (the caller loads both rasters).
+pub fn keep_out_off_grid(
+    terrain: &TerrainInput,
+    dem: &crate::terrain::Dem,
+    mask: &crate::terrain::Dem,
+) -> Option<Problem> {
+    let same_size = (mask.width(), mask.height()) == (dem.width(), dem.height());
+    let (a, b) = (&mask.georef, &dem.georef);
+    let close = |x: f64, y: f64| (x - y).abs() <= 1e-6 * b.pixel_width.abs().max(1.0);
+    let same_place = close(a.origin_x, b.origin_x)
+        && close(a.origin_y, b.origin_y)
+        && close(a.pixel_width, b.pixel_width)
+        && close(a.pixel_height, b.pixel_height);
+    if same_size && same_place {
+        return None;
+    }
+    Some(Problem {
+        key: "terrain.keep_out".into(),
+        at: terrain.keep_out_at,
+        detail: format!(
+            "the keep-out raster ({} x {} cells, origin ({}, {}), cells {} m) is not on the \
+             DEM's grid ({} x {} cells, origin ({}, {}), cells {} m)",
+            mask.width(),
+            mask.height(),
+            a.origin_x,
+            a.origin_y,
+            a.pixel_width,
+            dem.width(),
+            dem.height(),
+            b.origin_x,
+            b.origin_y,
+            b.pixel_width
+        ),
+        fix: "make the mask from the DEM itself (same size, origin and cell size)".into(),
+    })
 }
 
 /// Route points that fall outside the DEM or on a no-data cell, as problems at the
