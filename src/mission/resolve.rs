@@ -32,7 +32,7 @@ use crate::battery::loads::{LoadSpec, Loads, Schedule};
 use crate::battery::thermal::{ThermalNode, ThermalParams};
 use crate::battery::{BatteryError, Pack, PackParams};
 use crate::mission::spec::{
-    sort_problems, LoadRaw, Problem, RawMission, StageTable, TerrainRaw, Val,
+    sort_problems, LoadRaw, PolicyRaw, Problem, RawMission, RouteRaw, StageTable, TerrainRaw, Val,
 };
 use crate::plan::{Connectivity, Objective, RoutePoint, TiltLimits};
 use crate::sun::error::SunError;
@@ -366,6 +366,16 @@ pub fn resolve(
         list: Vec::new(),
     };
     let mission = build(raw, base, exists, &mut out);
+    if mission.is_none() && out.list.is_empty() {
+        // A safety net: every path that gives up reports why; should one not, say so
+        // rather than report an empty list.
+        out.add(
+            "(file)",
+            None,
+            "the mission could not be resolved, and no single key was found at fault".into(),
+            "please report this file to the sunward developers".into(),
+        );
+    }
     let mut list = out.list;
     sort_problems(&mut list);
     match mission {
@@ -591,7 +601,7 @@ fn rover(t: Option<&StageTable<'_>>, out: &mut Out<'_>) -> Option<Rover> {
         );
         return None;
     };
-    let file: RoverFile = t.to().ok()?;
+    let file: RoverFile = stage_value("rover", t, out)?;
     match file.resolve(out.text) {
         Ok(r) => Some(r),
         Err(VehicleError::Invalid(problems)) => {
@@ -620,25 +630,13 @@ fn rover(t: Option<&StageTable<'_>>, out: &mut Out<'_>) -> Option<Rover> {
 
 fn route(raw: &RawMission<'_>, rover: Option<&Rover>, out: &mut Out<'_>) -> Option<RoutePlan> {
     let Some(r) = &raw.route else {
-        section_missing(
-            out,
-            "route",
-            "add [route] with start_m = [x, y] and goal_m = [x, y]",
-        );
+        let fix = "add [route] with start_m = [x, y] and goal_m = [x, y]";
+        section_missing(out, "route", fix);
         return None;
     };
     let fix = "give the point in the terrain's map coordinates, metres, e.g. [120.0, 340.0]";
     out.missing("route.start_m", &r.start_m, fix);
     out.missing("route.goal_m", &r.goal_m, fix);
-    let place = |label: String, key: &str, v: &Val<[f64; 2]>, out: &Out<'_>| PlacedPoint {
-        point: RoutePoint {
-            label,
-            x: v.get_ref()[0],
-            y: v.get_ref()[1],
-        },
-        key: key.to_string(),
-        at: out.at(Some(v.span())),
-    };
     let waypoints = r
         .waypoints_m
         .iter()
@@ -649,30 +647,44 @@ fn route(raw: &RawMission<'_>, rover: Option<&Rover>, out: &mut Out<'_>) -> Opti
         })
         .collect();
     let sites = visit_sites(raw, out);
-    let objective = match get(&r.objective).as_deref() {
-        Some("time") => Objective::TIME,
-        Some("distance") => Objective::DISTANCE,
-        _ => Objective::ENERGY,
-    };
-    let connectivity = match get(&r.connectivity) {
-        Some(16) => Connectivity::Sixteen,
-        _ => Connectivity::Eight,
-    };
-    let rover = rover?;
-    let tilt = TiltLimits {
-        max_pitch_up_rad: get(&r.max_climb_deg).map_or(rover.max_climb_rad, deg_to_rad),
-        max_pitch_down_rad: get(&r.max_descent_deg).map_or(rover.max_descent_rad, deg_to_rad),
-        max_roll_rad: get(&r.max_roll_deg).map_or(rover.roll_limit_rad(), deg_to_rad),
-    };
     Some(RoutePlan {
         start: place("start".into(), "route.start_m", r.start_m.as_ref()?, out),
         goal: place("goal".into(), "route.goal_m", r.goal_m.as_ref()?, out),
         waypoints,
         sites: sites?,
-        objective,
-        connectivity,
-        tilt,
+        objective: objective_of(r),
+        connectivity: match get(&r.connectivity) {
+            Some(16) => Connectivity::Sixteen,
+            _ => Connectivity::Eight,
+        },
+        tilt: tilt_limits(r, rover?),
     })
+}
+
+fn place(label: String, key: &str, v: &Val<[f64; 2]>, out: &Out<'_>) -> PlacedPoint {
+    let [x, y] = *v.get_ref();
+    PlacedPoint {
+        point: RoutePoint { label, x, y },
+        key: key.to_string(),
+        at: out.at(Some(v.span())),
+    }
+}
+
+fn objective_of(r: &RouteRaw) -> Objective {
+    match get(&r.objective).as_deref() {
+        Some("time") => Objective::TIME,
+        Some("distance") => Objective::DISTANCE,
+        _ => Objective::ENERGY,
+    }
+}
+
+/// The rover's limits, each overridden by the route's key when given.
+fn tilt_limits(r: &RouteRaw, rover: &Rover) -> TiltLimits {
+    TiltLimits {
+        max_pitch_up_rad: get(&r.max_climb_deg).map_or(rover.max_climb_rad, deg_to_rad),
+        max_pitch_down_rad: get(&r.max_descent_deg).map_or(rover.max_descent_rad, deg_to_rad),
+        max_roll_rad: get(&r.max_roll_deg).map_or(rover.roll_limit_rad(), deg_to_rad),
+    }
 }
 
 fn visit_sites(raw: &RawMission<'_>, out: &mut Out<'_>) -> Option<Vec<VisitSite>> {
@@ -910,6 +922,27 @@ fn battery_problem(
     }
 }
 
+/// The stage's own type from its table, or a problem at the table.
+fn stage_value<T: serde::de::DeserializeOwned>(
+    prefix: &str,
+    t: &StageTable<'_>,
+    out: &mut Out<'_>,
+) -> Option<T> {
+    match t.to::<T>() {
+        Ok(v) => Some(v),
+        Err(e) => {
+            let span = e.span().or_else(|| Some(t.header.clone()));
+            out.add(
+                prefix,
+                span,
+                e.message().trim().to_string(),
+                format!("check the keys of [{prefix}] against docs/mission-file.md"),
+            );
+            None
+        }
+    }
+}
+
 /// Runs a stage's check on a table, dropping each reported key and asking again, so
 /// that every bad value is listed (the stages stop at the first).
 fn check_stage<T: serde::de::DeserializeOwned>(
@@ -921,7 +954,7 @@ fn check_stage<T: serde::de::DeserializeOwned>(
     let mut t = table.clone();
     let mut ok = true;
     for _ in 0..64 {
-        let value: T = t.to().ok()?;
+        let value: T = stage_value(prefix, &t, out)?;
         let Err(e) = check(&value) else {
             return ok.then_some(value);
         };
@@ -1160,27 +1193,7 @@ fn policy(
     out: &mut Out<'_>,
 ) -> Option<Policy> {
     let p = &raw.policy;
-    let driving = match get(&p.driving).as_deref() {
-        Some("window") => {
-            let fix = "give the local hours of the driving window";
-            out.missing("policy.drive_start_h", &p.drive_start_h, fix);
-            out.missing("policy.drive_end_h", &p.drive_end_h, fix);
-            DrivingHours::Window {
-                start_h: get(&p.drive_start_h)?,
-                end_h: get(&p.drive_end_h)?,
-            }
-        }
-        other => {
-            let m = format!("driving = \"{}\"", other.unwrap_or("daylight"));
-            out.not_for("policy.drive_start_h", &p.drive_start_h, &m);
-            out.not_for("policy.drive_end_h", &p.drive_end_h, &m);
-            if other == Some("any_time") {
-                DrivingHours::AnyTime
-            } else {
-                DrivingHours::Daylight
-            }
-        }
-    };
+    let driving = driving_hours(p, out)?;
     let policy = Policy {
         driving,
         min_soc_to_drive: get(&p.min_soc_to_drive).unwrap_or(defaults::MIN_SOC_TO_DRIVE),
@@ -1200,6 +1213,26 @@ fn policy(
     let socs_ok = soc_consistency(raw, &policy, battery, out);
     let loads_ok = loads.is_none_or(|l| survival_loads_ok(raw, l, out));
     (socs_ok && loads_ok).then_some(policy)
+}
+
+fn driving_hours(p: &PolicyRaw, out: &mut Out<'_>) -> Option<DrivingHours> {
+    let mode = get(&p.driving);
+    if mode.as_deref() == Some("window") {
+        let fix = "give the local hours of the driving window";
+        out.missing("policy.drive_start_h", &p.drive_start_h, fix);
+        out.missing("policy.drive_end_h", &p.drive_end_h, fix);
+        return Some(DrivingHours::Window {
+            start_h: get(&p.drive_start_h)?,
+            end_h: get(&p.drive_end_h)?,
+        });
+    }
+    let m = format!("driving = \"{}\"", mode.as_deref().unwrap_or("daylight"));
+    out.not_for("policy.drive_start_h", &p.drive_start_h, &m);
+    out.not_for("policy.drive_end_h", &p.drive_end_h, &m);
+    Some(match mode.as_deref() {
+        Some("any_time") => DrivingHours::AnyTime,
+        _ => DrivingHours::Daylight,
+    })
 }
 
 /// Each survival load exists and is on while the rover sleeps.
