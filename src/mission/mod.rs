@@ -36,8 +36,22 @@ pub fn check(
         Ok(_) => Err(problems),
         Err(more) => {
             problems.extend(more);
+            if problems.is_empty() {
+                problems.push(unexplained());
+            }
             spec::sort_problems(&mut problems);
             Err(problems)
         }
+    }
+}
+
+/// A safety net: every path of the resolver that gives up reports why, after the
+/// spec's problems; should one not, say so rather than return an empty list.
+fn unexplained() -> Problem {
+    Problem {
+        key: "(file)".into(),
+        at: None,
+        detail: "the mission could not be resolved, and no single key was found at fault".into(),
+        fix: "please report this file to the sunward developers".into(),
     }
 }

@@ -353,7 +353,9 @@ fn get<T: Clone>(v: &Option<Val<T>>) -> Option<T> {
 /// Checks the raw mission against itself and the stages, and builds the [`Mission`].
 ///
 /// `text` is the mission file's text (for line and column), `base` the folder the
-/// mission file is in, `exists` tells whether an input file exists.
+/// mission file is in, `exists` tells whether an input file exists. The list can be
+/// empty when the only faults are ones the spec reported (their keys are absent from
+/// the raw mirror): call [`crate::mission::check`] for both lists together.
 pub fn resolve(
     raw: &RawMission<'_>,
     text: &str,
@@ -366,16 +368,6 @@ pub fn resolve(
         list: Vec::new(),
     };
     let mission = build(raw, base, exists, &mut out);
-    if mission.is_none() && out.list.is_empty() {
-        // A safety net: every path that gives up reports why; should one not, say so
-        // rather than report an empty list.
-        out.add(
-            "(file)",
-            None,
-            "the mission could not be resolved, and no single key was found at fault".into(),
-            "please report this file to the sunward developers".into(),
-        );
-    }
     let mut list = out.list;
     sort_problems(&mut list);
     match mission {
