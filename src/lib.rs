@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission ─► report / study   (planned)
+//!          mission::{spec, resolve} ─► mission::sim ─► report / study   (sim, study planned)
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).

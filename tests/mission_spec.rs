@@ -610,3 +610,58 @@ fn seasons_are_named_for_the_hemisphere_and_dated_locally() {
         NaiveDate::from_ymd_opt(2027, 3, 21).unwrap()
     );
 }
+
+/// A small seeded generator (64-bit LCG, Knuth's MMIX constants) for the mutation test.
+struct Lcg(u64);
+
+impl Lcg {
+    fn next(&mut self, n: usize) -> usize {
+        self.0 = self
+            .0
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        ((self.0 >> 33) as usize) % n.max(1)
+    }
+}
+
+fn mutate(text: &str, rng: &mut Lcg) -> String {
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    let i = rng.next(lines.len());
+    match rng.next(6) {
+        0 => {
+            lines.remove(i);
+        }
+        1 => lines.insert(i, lines[i].clone()),
+        2 => lines[i] = lines[i].replace("0", "x"),
+        3 => lines[i] = lines[i].replace('=', "= ["),
+        4 => lines[i] = lines[i].replace('.', "-"),
+        _ => {
+            let keep = rng.next(lines[i].len() + 1);
+            lines[i] = lines[i].chars().take(keep).collect();
+        }
+    }
+    lines.join("\n") + "\n"
+}
+
+/// Invariant: no mutated mission text panics the checker, a refused text always gets at
+/// least one problem, and every problem's place lies inside the text.
+#[test]
+fn mutated_mission_texts_never_panic_and_problems_point_inside_the_text() {
+    let demo = include_str!("../missions/vardholm_survey.toml");
+    let mut rng = Lcg(20_270_621);
+    for round in 0..400 {
+        let mut text = demo.to_string();
+        for _ in 0..=rng.next(3) {
+            text = mutate(&text, &mut rng);
+        }
+        let lines = text.lines().count() + 1;
+        if let Err(list) = check(&text, Path::new("/nowhere"), &|_: &Path| true) {
+            assert!(!list.is_empty(), "round {round}: refused without a problem");
+            for p in &list {
+                let at =
+                    p.at.unwrap_or(sunward::vehicle::TextPos { line: 1, column: 1 });
+                assert!(at.line <= lines, "round {round}: {p} beyond the text");
+            }
+        }
+    }
+}
