@@ -304,6 +304,28 @@ fn survival_load_must_be_on_while_asleep() {
 }
 
 #[test]
+fn two_loads_with_one_name_are_refused() {
+    let load = "[[loads]]\nname = \"pump\"\npower_w = 5.0\nwhen = \"parked\"\n";
+    let text = format!("{BASE}{load}{load}");
+    check_one(
+        &text,
+        "m.toml:20:8: loads[1]: a second load named \"pump\". Fix: give every load its own \
+         name",
+    );
+}
+
+#[test]
+fn two_sites_with_one_name_are_refused() {
+    let site = "[[route.sites]]\nname = \"cairn\"\nx_m = 20.0\ny_m = 20.0\n";
+    let text = format!("{BASE}{site}{site}");
+    check_one(
+        &text,
+        "m.toml:19:1: route.sites[1]: a second site named \"cairn\". Fix: give every site its \
+         own name",
+    );
+}
+
+#[test]
 fn toml_syntax_error_has_its_place() {
     // The parser stops at the second decimal point, column 14.
     let text = BASE.replace("lon_deg = 5.0", "lon_deg = 5.0.1");

@@ -72,7 +72,7 @@ fn summary(path: &Path, m: &Mission, w: usize, h: usize) -> String {
     format!(
         "{}: OK. Site \"{}\" at {:.3}°, {:.3}° (UTC{}), terrain {} ({w} x {h} cells); route \
          from ({}, {}) to ({}, {}) through {} waypoint(s) and {} site(s); rover {} kg with \
-         {} kg payload; {} m² of panels; battery {capacity} {:?}; {} load(s); {sky}; \
+         {} kg payload; {} m² of panels; battery {capacity} {}; {} load(s); {sky}; \
          driving {driving}, deadline {} days; {} season(s): {}; step {} s.",
         path.display(),
         m.site.name,
@@ -89,7 +89,7 @@ fn summary(path: &Path, m: &Mission, w: usize, h: usize) -> String {
         m.rover.mass_kg,
         m.rover.payload_kg,
         m.panels.panel.area_m2,
-        m.battery.chemistry,
+        m.battery.chemistry.preset().name,
         m.loads.specs().len(),
         m.policy.deadline_s / 86_400.0,
         m.seasons.len(),
