@@ -56,6 +56,14 @@ pub enum Error {
         /// The path.
         path: PathBuf,
     },
+    /// A mission file with problems: each line is `FILE:LINE:COLUMN: key: problem. Fix: ...`.
+    #[error("{file}: the mission file has {} problem(s):\n{}", .problems.len(), .problems.join("\n"))]
+    Mission {
+        /// The mission file.
+        file: PathBuf,
+        /// Every problem, rendered.
+        problems: Vec<String>,
+    },
     /// A command-line value is out of range or inconsistent.
     #[error("{0}")]
     Usage(String),

@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission (sim, ledger) ─► report / study   (in progress)
+//!          mission::{spec, resolve} ─► mission::sim ─► report / study   (study planned)
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -52,6 +52,8 @@
 //! - [`battery::ambient`]: air temperature from monthly means or a series.
 //! - [`battery::loads`]: named loads and their schedules.
 //! - [`battery::ageing`]: equivalent full cycles and rainflow damage.
+//! - [`mission::spec`]: the mission file as written, every key checked alone.
+//! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
 //! - [`report`]: output serialisers and the one atomic writer.

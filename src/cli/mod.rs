@@ -1,5 +1,6 @@
 //! Command-line definition (clap derive): the single source of the CLI's help text.
 
+mod check;
 mod demo;
 mod progress;
 mod route;
@@ -36,6 +37,8 @@ enum Command {
     Sun(sun::SunArgs),
     /// Plan a route on a DEM: exact energy-, time- or distance-optimal A* with tilt limits.
     Route(route::RouteArgs),
+    /// Validate a mission file without running it: every problem with line and column.
+    Check(check::CheckArgs),
 }
 
 /// How to read a DEM: the flags every command that takes a DEM shares.
@@ -135,6 +138,7 @@ pub fn run(cli: Cli) -> Result<(), Error> {
         Command::Terrain(t) => terrain::run(t),
         Command::Sun(a) => sun::run(a),
         Command::Route(a) => route::run(a),
+        Command::Check(a) => check::run(a),
     }
 }
 

@@ -11,7 +11,7 @@ use chrono::{DateTime, Duration, NaiveDate, Utc};
 use rayon::prelude::*;
 
 use crate::mission::ledger::{daily_budgets, DayBudget};
-use crate::mission::seasons::Season;
+use crate::mission::resolve::Season;
 use crate::mission::sim::{simulate, Run, SimError, SimSetup};
 use crate::mission::verdict::{summarize, SeasonSummary};
 
