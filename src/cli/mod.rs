@@ -4,6 +4,7 @@ mod check;
 mod demo;
 mod progress;
 mod route;
+mod run;
 mod sun;
 mod terrain;
 
@@ -35,6 +36,8 @@ enum Command {
     Terrain(terrain::TerrainCommand),
     /// Sun position and clear-sky irradiance: one instant, one day, or a CSV series.
     Sun(sun::SunArgs),
+    /// Run a mission: plan the route, simulate every season, write the verdict and budgets.
+    Run(run::RunArgs),
     /// Plan a route on a DEM: exact energy-, time- or distance-optimal A* with tilt limits.
     Route(route::RouteArgs),
     /// Validate a mission file without running it: every problem with line and column.
@@ -138,6 +141,7 @@ pub fn run(cli: Cli) -> Result<(), Error> {
         Command::Terrain(t) => terrain::run(t),
         Command::Sun(a) => sun::run(a),
         Command::Route(a) => route::run(a),
+        Command::Run(a) => run::run(a),
         Command::Check(a) => check::run(a),
     }
 }

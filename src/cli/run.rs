@@ -1,0 +1,285 @@
+//! `sunward run MISSION.toml`: check the mission, plan the route, simulate every season
+//! and write the verdict, the time series, the daily budgets and the route.
+
+use std::path::{Path, PathBuf};
+
+use clap::Args;
+
+use sunward::battery::ambient::Ambient;
+use sunward::battery::pack::Pack;
+use sunward::battery::thermal::ThermalNode;
+use sunward::mission::resolve::{DrivingHours, Mission, Sky};
+use sunward::mission::runner::{run_seasons, SeasonResult};
+use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup};
+use sunward::mission::{check, Problem};
+use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
+use sunward::report::atomic::write_atomic;
+use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
+use sunward::report::json::{summary, summary_json};
+use sunward::sun::position::{delta_t_model_s, Observer};
+use sunward::terrain::{horizon, io::read_dem, Dem};
+use sunward::vehicle::plan_model::RoverStepModel;
+use sunward::Error;
+
+use super::progress::Bar;
+use super::route::{profile_csv, route_geojson, summary_json as route_summary_json};
+
+#[derive(Debug, Args)]
+pub struct RunArgs {
+    /// The mission file (TOML; `sunward check` validates it).
+    mission: PathBuf,
+    /// Folder for the outputs (created if missing).
+    #[arg(long, value_name = "DIR", default_value = "sunward-out")]
+    out: PathBuf,
+    /// Run only the seasons whose name contains this text (repeat for several).
+    #[arg(long, value_name = "NAME")]
+    season: Vec<String>,
+    /// Exit with code 1 when any season is infeasible.
+    #[arg(long)]
+    fail_on_infeasible: bool,
+}
+
+/// Reads and checks the mission file, listing every problem on failure.
+pub fn load_mission(path: &Path) -> Result<Mission, Error> {
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Input {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let base = path.parent().unwrap_or(Path::new("")).to_path_buf();
+    let file = path.display().to_string();
+    check(&text, &base, &|p: &Path| p.is_file()).map_err(|problems: Vec<Problem>| Error::Mission {
+        file: path.to_path_buf(),
+        problems: problems.iter().map(|p| p.render(&file)).collect(),
+    })
+}
+
+/// Cells closed by the mission's keep-out raster (cells with data are closed).
+fn flags_for(m: &Mission, dem: &Dem) -> Result<CellFlags, Error> {
+    let mut flags = CellFlags::from_dem(dem);
+    if let Some(path) = &m.terrain.keep_out_path {
+        let mask = read_dem(path, &m.terrain.read)?;
+        if (mask.width(), mask.height()) != (dem.width(), dem.height()) {
+            return Err(Error::Usage(format!(
+                "{}: the keep-out raster is {} x {} cells, the terrain {} x {}. Fix: give a \
+                 keep-out raster on the terrain's grid",
+                path.display(),
+                mask.width(),
+                mask.height(),
+                dem.width(),
+                dem.height()
+            )));
+        }
+        for (i, v) in mask.data().iter().enumerate() {
+            if !v.is_nan() {
+                flags.block(i, sunward::plan::Blocked::KeepOut);
+            }
+        }
+    }
+    Ok(flags)
+}
+
+/// The route: start, waypoints, the sites in the file's order, goal.
+fn route_points(m: &Mission) -> Vec<RoutePoint> {
+    let mut pts = vec![m.route.start.point.clone()];
+    pts.extend(m.route.waypoints.iter().map(|w| w.point.clone()));
+    pts.extend(m.route.sites.iter().map(|s| s.place.point.clone()));
+    pts.push(m.route.goal.point.clone());
+    pts
+}
+
+fn policy(m: &Mission) -> Policy {
+    let drive_hours = match m.policy.driving {
+        DrivingHours::Daylight => DriveHours::Daylight,
+        DrivingHours::Window { start_h, end_h } => DriveHours::LocalWindow { start_h, end_h },
+        DrivingHours::AnyTime => DriveHours::Always,
+    };
+    Policy {
+        drive_hours,
+        min_soc_to_drive: m.policy.min_soc_to_drive,
+        resume_soc: m.policy.park_and_charge_to_soc,
+        deadline_s: m.policy.deadline_s,
+        end: EndCondition::Arrival,
+    }
+}
+
+pub fn run(a: RunArgs) -> Result<(), Error> {
+    let m = load_mission(&a.mission)?;
+    std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
+        path: a.out.clone(),
+        source,
+    })?;
+    super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
+    if let Sky::Csv { path } = &m.weather.sky {
+        return Err(Error::Usage(format!(
+            "{}: weather files are not used by the simulation yet. Fix: use the clear sky \
+             ([weather] sky = \"clear\") for now",
+            path.display()
+        )));
+    }
+    let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
+    let flags = flags_for(&m, &dem)?;
+    let model = RoverStepModel::new(&m.rover);
+    let planner = Planner {
+        dem: &dem,
+        flags: &flags,
+        model: &model,
+        limits: m.route.tilt,
+        connectivity: m.route.connectivity,
+        objective: m.route.objective,
+    };
+    let route = plan_route(&planner, &route_points(&m))?;
+    eprintln!(
+        "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
+        route.summary.length_m,
+        sunward::units::j_to_wh(route.summary.energy_j),
+        route.summary.duration_s / 3600.0
+    );
+    let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
+    let results = simulate_seasons(&m, &route, &horizons, &a.season)?;
+    write_outputs(&a.out, &m, &route, &planner, &results)?;
+    print_verdicts(&m, &results, &a.out);
+    if a.fail_on_infeasible && results.iter().any(|r| !r.summary.feasible) {
+        std::process::exit(1);
+    }
+    Ok(())
+}
+
+fn simulate_seasons(
+    m: &Mission,
+    route: &Route,
+    horizons: &horizon::HorizonMap,
+    only: &[String],
+) -> Result<Vec<SeasonResult>, Error> {
+    let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
+    let pack = Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?;
+    let thermal = ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?;
+    let ambient = Ambient::Monthly(m.weather.climate.clone());
+    let linke = match &m.weather.sky {
+        Sky::ClearSky(l) | Sky::Clearness { linke: l, .. } => *l,
+        Sky::Csv { .. } => unreachable!("refused before"),
+    };
+    let observer = Observer::new(
+        m.site.latitude_rad,
+        m.site.longitude_rad,
+        m.site.elevation_m,
+    )
+    .map_err(|e| stage(e.to_string()))?;
+    let year = m
+        .seasons
+        .first()
+        .map_or(2027, |s| chrono::Datelike::year(&s.date));
+    let setup = SimSetup {
+        route,
+        rover: &m.rover,
+        pack: &pack,
+        initial_soc: 1.0,
+        thermal: &thermal,
+        initial_box_temp_c: None,
+        loads: &m.loads,
+        panel: &m.panels.panel,
+        mount: m.panels.mount,
+        sky: SkySetup {
+            observer,
+            delta_t_s: delta_t_model_s(f64::from(year) + 0.5),
+            linke,
+            sky_model: m.weather.sky_model,
+            albedo: m.weather.albedo,
+            wind_m_s: m.weather.wind_m_s,
+        },
+        horizon: Some(horizons),
+        ambient: &ambient,
+        utc_offset_s: i64::from(m.site.utc_offset.local_minus_utc()),
+        policy: policy(m),
+        step_s: m.step_s,
+    };
+    let seasons: Vec<_> = m
+        .seasons
+        .iter()
+        .filter(|s| only.is_empty() || only.iter().any(|o| s.name.contains(o.as_str())))
+        .cloned()
+        .collect();
+    if seasons.is_empty() {
+        return Err(Error::Usage(format!(
+            "no season matches --season {:?}; the mission has: {}",
+            only,
+            m.seasons
+                .iter()
+                .map(|s| s.name.as_str())
+                .collect::<Vec<_>>()
+                .join(", ")
+        )));
+    }
+    run_seasons(&setup, &seasons).map_err(|e| stage(e.to_string()))
+}
+
+fn slug(name: &str) -> String {
+    name.chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
+        .collect()
+}
+
+fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
+    out: &Path,
+    m: &Mission,
+    route: &Route,
+    planner: &Planner<'_, M>,
+    results: &[SeasonResult],
+) -> Result<(), Error> {
+    let inputs = serde_json::json!({
+        "site": {"name": m.site.name, "lat_deg": m.site.latitude_rad.to_degrees(),
+                 "lon_deg": m.site.longitude_rad.to_degrees(), "elevation_m": m.site.elevation_m,
+                 "utc_offset": m.site.utc_offset.to_string()},
+        "terrain_file": m.terrain.dem_path.display().to_string(),
+        "route_length_m": route.summary.length_m,
+        "battery_capacity_wh": m.battery.capacity_wh,
+        "panel_area_m2": m.panels.panel.area_m2,
+        "step_s": m.step_s,
+        "deadline_s": m.policy.deadline_s,
+        "initial_soc": 1.0,
+    });
+    let doc = summary(&m.site.name, results, inputs);
+    let text = summary_json(&doc);
+    write_atomic(&out.join("summary.json"), |w| w.write_all(text.as_bytes()))?;
+    let mut daily = format!("{DAILY_HEADER}\n");
+    for r in results {
+        let text = timeseries_csv(&r.run.samples);
+        let name = format!("timeseries-{}.csv", slug(&r.season.name));
+        write_atomic(&out.join(name), |w| w.write_all(text.as_bytes()))?;
+        daily.push_str(&daily_rows(&r.season.name, &r.days));
+    }
+    write_atomic(&out.join("daily-budget.csv"), |w| {
+        w.write_all(daily.as_bytes())
+    })?;
+    let rs = route_summary_json(route, planner.objective, &m.rover, &planner.limits);
+    let gj = serde_json::to_string(&route_geojson(route, &rs)).expect("JSON values serialise");
+    write_atomic(&out.join("route.geojson"), |w| w.write_all(gj.as_bytes()))?;
+    let prof = profile_csv(route);
+    write_atomic(&out.join("profile.csv"), |w| w.write_all(prof.as_bytes()))?;
+    Ok(())
+}
+
+fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
+    crate::say!("{}: {} season(s)", m.site.name, results.len());
+    for r in results {
+        let s = &r.summary;
+        crate::say!(
+            "  {:<18} {}  {:<10} min SOC {:>5.1} %  margin {:+.2}  generated {:>7.0} Wh  used {:>7.0} Wh  {}",
+            s.name,
+            s.date,
+            if s.feasible { "FEASIBLE" } else { "INFEASIBLE" },
+            100.0 * s.min_soc,
+            s.margin,
+            s.energy_generated_wh,
+            s.energy_consumed_wh.drive + s.energy_consumed_wh.hotel + s.energy_consumed_wh.payload + s.energy_consumed_wh.heater,
+            s.reason
+        );
+    }
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv", out.display());
+    crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
+}
