@@ -159,3 +159,79 @@ fn charts_that_cannot_be_drawn_say_why() {
         "chart: no finite point to draw. Fix: give at least one series with finite points"
     );
 }
+
+fn sunward_sun(args: &[&str]) -> std::process::Output {
+    assert_cmd::Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("sun")
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+/// `sunward sun --daily --plot` writes a PNG of the asked day (1200 × 700) and an SVG
+/// whose text names the site, the date, the units, the clock (UTC or the stated
+/// offset), the legend and the night band; the table on stdout is still printed.
+#[test]
+fn sun_daily_plot_writes_png_and_svg() {
+    let dir = tempfile::tempdir().unwrap();
+    let png_path = dir.path().join("day.png");
+    let base = [
+        "--lat",
+        "61.2",
+        "--lon",
+        "-149.9",
+        "--date",
+        "2031-06-21",
+        "--daily",
+    ];
+    let mut args = base.to_vec();
+    args.extend(["--plot", png_path.to_str().unwrap()]);
+    let out = sunward_sun(&args);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(String::from_utf8_lossy(&out.stdout).contains("time_utc"));
+    let (info, _) = decode(&std::fs::read(&png_path).unwrap());
+    assert_eq!((info.width, info.height), (1200, 700));
+
+    let svg_path = dir.path().join("day.SVG");
+    let mut args = base.to_vec();
+    args.extend(["--plot", svg_path.to_str().unwrap(), "--utc-offset-h", "-8"]);
+    args.extend(["--tilt-deg", "40", "--panel-azimuth-deg", "180"]);
+    assert!(sunward_sun(&args).status.success());
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    for text in [
+        "61.20° N, 149.90° W, 2031-06-21",
+        "time (UTC-08:00)",
+        "irradiance (W/m²)",
+        "sun elevation (deg",
+        "GHI",
+        "DNI",
+        "DHI",
+        "POA (tilt 40°",
+        "night (sun below horizon)",
+    ] {
+        assert!(svg.contains(text), "missing {text:?}");
+    }
+}
+
+#[test]
+fn sun_plot_needs_a_known_extension() {
+    let out = sunward_sun(&[
+        "--lat",
+        "10",
+        "--lon",
+        "10",
+        "--date",
+        "2031-06-21",
+        "--daily",
+        "--plot",
+        "day.jpg",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr)
+        .contains("--plot day.jpg: expected a file ending in .png or .svg"));
+}
