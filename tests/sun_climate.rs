@@ -11,8 +11,8 @@ use sun_ref::{near, num, rows};
 use sunward::sun::climate::{
     clearness_series, collares_pereira_rabl_day_integral, collares_pereira_rabl_ratio,
     daily_extraterrestrial_wh_m2, liu_jordan_ratio, parse_monthly_clearness, parse_weather_csv,
-    sunset_hour_angle_rad, ComponentSource, GapFill, MonthlyClearness, ProfileScaling,
-    WeatherCsvOptions,
+    parse_weather_csv_with_clear_sky, sunset_hour_angle_rad, ComponentSource, GapFill,
+    MonthlyClearness, ProfileScaling, WeatherCsvOptions,
 };
 use sunward::sun::irradiance::{extraterrestrial_w_m2, SOLAR_CONSTANT_W_M2};
 use sunward::sun::position::{sun_position, Observer, SunPosition};
@@ -343,7 +343,7 @@ fn linear_fill_interpolates_short_gaps_only() {
     assert_eq!(
         parse(text, short).unwrap_err(),
         "line 3: gap of 30 min after this line, the largest allowed is 2 x the median step \
-         (10 min). Fix: give the missing records; the linear fill covers gaps up to 1 steps"
+         (10 min). Fix: give the missing records; the fill covers gaps up to 1 steps"
     );
 }
 
@@ -405,4 +405,131 @@ fn monthly_clearness_text_is_checked() {
         parse_monthly_clearness(&short).unwrap_err().to_string(),
         "line 12: 11 months given, twelve are needed. Fix: give one row per month, 1 to 12"
     );
+}
+
+/// Our clear sky at a site (Ineichen-Perez, checked against pvlib in
+/// sun_irradiance.rs), as the caller of the clear-sky-index fill would give it.
+fn clear_sky_site(lat_deg: f64) -> impl Fn(DateTime<Utc>) -> f64 {
+    use sunward::sun::irradiance::LinkeTurbidity;
+    use sunward::sun::series::{sample_at, SeriesSetup};
+    use sunward::sun::transposition::{Plane, SkyModel};
+    let setup = SeriesSetup {
+        observer: site(lat_deg),
+        delta_t_s: 69.0,
+        linke: LinkeTurbidity::new([3.0; 12]).unwrap(),
+        plane: Plane::new(0.0, std::f64::consts::PI).unwrap(),
+        sky_model: SkyModel::Isotropic,
+        albedo: 0.2,
+    };
+    move |t| {
+        sample_at(t, sun_position(t, &setup.observer, 69.0), &setup)
+            .clear_sky
+            .ghi_w_m2
+    }
+}
+
+/// A half-hourly record whose clear-sky index is 0.6 throughout, with the three records
+/// around noon missing: the clear-sky-index fill restores 0.6 × clear-sky GHI at the
+/// missing instants (a property of the fill), where the linear fill cuts the curve's
+/// chord below it.
+#[test]
+fn clear_sky_index_fill_carries_the_index_across_a_gap() {
+    let cs = clear_sky_site(47.8);
+    let obs = site(47.8);
+    let sun = |t| sun_position(t, &obs, 69.0);
+    let t0 = day_start("2031-03-20") + Duration::hours(6);
+    let mut text = String::from("time,ghi_w_m2\n");
+    for k in (0..24).filter(|k| !(11..14).contains(k)) {
+        let t = t0 + Duration::minutes(30 * k);
+        text.push_str(&format!("{},{}\n", t.to_rfc3339(), 0.6 * cs(t)));
+    }
+    let fill = |gap_fill| WeatherCsvOptions {
+        gap_fill,
+        ..WeatherCsvOptions::default()
+    };
+    let by_index = parse_weather_csv_with_clear_sky(
+        &text,
+        &fill(GapFill::ClearSkyIndex { max_steps: 3 }),
+        sun,
+        &cs,
+    )
+    .unwrap();
+    let linear = parse_weather_csv(&text, &fill(GapFill::Linear { max_steps: 3 }), sun).unwrap();
+    assert_eq!(by_index.records.len(), 24);
+    for k in 11..14 {
+        let r = &by_index.records[k];
+        assert_eq!(r.source, ComponentSource::Filled);
+        assert_eq!(r.time, t0 + Duration::minutes(30 * k as i64));
+        let want = 0.6 * cs(r.time);
+        assert!((r.irradiance.ghi_w_m2 - want).abs() < 1e-9 * want, "{r:?}");
+        let closure = r.irradiance.dhi_w_m2 + r.irradiance.dni_w_m2 * sun(r.time).zenith_rad.cos();
+        assert!((closure - want).abs() < 1e-6 * want);
+        assert!(want - linear.records[k].irradiance.ghi_w_m2 > 2.0);
+    }
+}
+
+#[test]
+fn clear_sky_index_fill_refuses_dark_gaps_and_needs_a_clear_sky() {
+    let cs = clear_sky_site(47.8);
+    let text = "time,ghi_w_m2\n2031-03-20T00:00:00Z,0\n2031-03-20T00:10:00Z,0\n\
+                2031-03-20T00:40:00Z,0\n2031-03-20T00:50:00Z,0\n";
+    let o = WeatherCsvOptions {
+        gap_fill: GapFill::ClearSkyIndex { max_steps: 4 },
+        ..WeatherCsvOptions::default()
+    };
+    assert_eq!(
+        parse_weather_csv_with_clear_sky(text, &o, noon_sun, &cs)
+            .unwrap_err()
+            .to_string(),
+        "line 3: gap of 30 min after this line: the clear-sky index is undefined at both \
+         ends (sun near or below the horizon). Fix: give the missing records, or use the \
+         linear fill for gaps in darkness"
+    );
+    assert_eq!(
+        parse(text, o).unwrap_err(),
+        "gap_fill = clear-sky index: expected a clear-sky GHI for the site. Fix: call \
+         parse_weather_csv_with_clear_sky, or use the linear fill"
+    );
+}
+
+/// Irregular steps (1 min, with one 2-min step and a 90 s step) are accepted as they
+/// are: the median step is 1 min and nothing is inserted.
+#[test]
+fn irregular_steps_within_the_allowed_gap_are_kept() {
+    let secs = [0, 60, 120, 240, 300, 390, 450, 510];
+    let mut text = String::from("time,ghi_w_m2\n");
+    for s in secs {
+        let t = day_start("2031-03-20") + Duration::hours(11) + Duration::seconds(s);
+        text.push_str(&format!("{},500\n", t.to_rfc3339()));
+    }
+    let s = parse_weather_csv(&text, &WeatherCsvOptions::default(), noon_sun).unwrap();
+    assert_eq!(s.median_step_s, 60);
+    assert_eq!(s.records.len(), secs.len());
+}
+
+/// Polar night gives no light at all; midnight sun gives light at every instant of the
+/// day (Duffie and Beckman eq. 1.6.10 clipped to ωs = 0 and π).
+#[test]
+fn polar_night_is_dark_and_midnight_sun_is_lit() {
+    let lat = 78.2;
+    let obs = site(lat);
+    let clearness = MonthlyClearness::new([0.5; 12]).unwrap();
+    let day = |date: &str| {
+        clearness_series(
+            &clearness,
+            deg_to_rad(lat),
+            day_start(date),
+            1800,
+            48,
+            ProfileScaling::default(),
+            |t| sun_position(t, &obs, 69.0),
+        )
+        .unwrap()
+    };
+    assert!(day("2031-12-21")
+        .iter()
+        .all(|r| r.irradiance.ghi_w_m2 == 0.0));
+    assert!(day("2031-06-21")
+        .iter()
+        .all(|r| r.irradiance.ghi_w_m2 > 0.0));
 }

@@ -19,8 +19,9 @@
 //! - Any time step (1 min to 1 h or more), possibly irregular. A gap longer than
 //!   [`WeatherCsvOptions::max_gap_factor`] × the median step is an error naming the line
 //!   and the gap, unless the caller asks for [`GapFill::Linear`], which inserts records
-//!   at the median step by linear interpolation for gaps up to `max_steps` steps.
-//!   With the linear fill asked for, a row with an empty GHI cell counts as missing
+//!   at the median step by linear interpolation for gaps up to `max_steps` steps, or
+//!   [`GapFill::ClearSkyIndex`], which carries the clear-sky index across the gap.
+//!   With a fill asked for, a row with an empty GHI cell counts as missing
 //!   (its gap is then filled or refused like any other; at the start or end of the
 //!   record it is dropped, shortening the record). Nothing is ever filled with zeros.
 //! - Irradiance between −[`WeatherCsvOptions::negative_tolerance_w_m2`] and 0 reads as
@@ -65,8 +66,8 @@
 //! solar noon, with no cloud passages, no day-to-day spread and no morning/afternoon
 //! asymmetry. Near polar night and midnight sun (ωs near 0 or π) the fit is outside its
 //! data and the profile is only indicative. The horizon of the site is not applied here
-//! (terrain shading is [`super::shading`]'s job). Gap filling is linear only: a
-//! clear-sky-index fill is not offered yet.
+//! (terrain shading is [`super::shading`]'s job). Both gap fills invent a smooth sky
+//! for the gap: cloud passages inside it are lost, so keep `max_steps` short.
 //!
 //! # Units
 //! Irradiance W/m², daily irradiation Wh/m², angles radians, temperature °C, offsets
@@ -118,7 +119,22 @@ pub enum GapFill {
         /// Longest gap filled, in median steps.
         max_steps: usize,
     },
+    /// Gaps up to `max_steps` median steps are filled with the clear-sky index
+    /// (GHI over clear-sky GHI) interpolated linearly between the gap's ends, times the
+    /// clear-sky GHI inside the gap; DNI and DHI of filled records by Erbs. Needs
+    /// [`parse_weather_csv_with_clear_sky`]. An end whose clear-sky GHI is below
+    /// [`MIN_CLEAR_SKY_FOR_INDEX_W_M2`] takes the other end's index; with both ends
+    /// that dark the gap is an error (there is no index to carry).
+    ClearSkyIndex {
+        /// Longest gap filled, in median steps.
+        max_steps: usize,
+    },
 }
+
+/// Smallest clear-sky GHI at which a clear-sky index is formed, W/m². Below it (sun
+/// within a few degrees of the horizon) the index is dominated by sensor and model
+/// error near sunrise and sunset (common practice; the value is sunward's choice).
+pub const MIN_CLEAR_SKY_FOR_INDEX_W_M2: f64 = 20.0;
 
 /// Options of [`parse_weather_csv`].
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -317,7 +333,7 @@ fn parse_row(
     };
     let ghi = opt(Some(c.ghi), "ghi_w_m2", true)?;
     let Some(ghi) = ghi else {
-        if matches!(o.gap_fill, GapFill::Linear { .. }) {
+        if o.gap_fill != GapFill::Refuse {
             return Ok(None);
         }
         return Err(input_err(
@@ -435,10 +451,74 @@ fn fill_between(a: &RawRow, b: &RawRow, step_s: i64) -> Vec<RawRow> {
         .collect()
 }
 
+/// Clear-sky GHI at an instant, W/m², when the caller gave one.
+type ClearSky<'a> = Option<&'a dyn Fn(DateTime<Utc>) -> f64>;
+
+/// Clear-sky index at one end of a gap, if the sky there is bright enough.
+fn end_index(r: &RawRow, cs: &dyn Fn(DateTime<Utc>) -> f64) -> Option<f64> {
+    let c = cs(r.time);
+    (c >= MIN_CLEAR_SKY_FOR_INDEX_W_M2).then(|| r.ghi / c)
+}
+
+/// Rows inside (a, b) from the interpolated clear-sky index (see [`GapFill`]).
+fn fill_by_index(
+    a: &RawRow,
+    b: &RawRow,
+    step_s: i64,
+    cs: &dyn Fn(DateTime<Utc>) -> f64,
+) -> Option<Vec<RawRow>> {
+    let (ka, kb) = match (end_index(a, cs), end_index(b, cs)) {
+        (None, None) => return None,
+        (ka, kb) => (ka.or(kb)?, kb.or(ka)?),
+    };
+    let span_s = (b.time - a.time).num_seconds() as f64;
+    let rows = fill_between(a, b, step_s)
+        .into_iter()
+        .map(|r| {
+            let f = (r.time - a.time).num_milliseconds() as f64 / 1000.0 / span_s;
+            RawRow {
+                ghi: lerp(ka, kb, f) * cs(r.time).max(0.0),
+                dni: None,
+                dhi: None,
+                ..r
+            }
+        })
+        .collect();
+    Some(rows)
+}
+
+fn fill_gap(
+    a: &RawRow,
+    b: &RawRow,
+    step_s: i64,
+    o: &WeatherCsvOptions,
+    clear_sky: ClearSky<'_>,
+) -> Result<Vec<RawRow>, SunError> {
+    let gap = (b.time - a.time).num_seconds();
+    let fits = |max_steps: usize| gap <= (max_steps as i64 + 1) * step_s;
+    match (o.gap_fill, clear_sky) {
+        (GapFill::Linear { max_steps }, _) if fits(max_steps) => Ok(fill_between(a, b, step_s)),
+        (GapFill::ClearSkyIndex { max_steps }, Some(cs)) if fits(max_steps) => {
+            fill_by_index(a, b, step_s, cs).ok_or_else(|| {
+                input_err(
+                    a.line,
+                    format!(
+                        "gap of {} after this line: the clear-sky index is undefined at both ends (sun near or below the horizon)",
+                        format_duration_s(gap)
+                    ),
+                    "give the missing records, or use the linear fill for gaps in darkness",
+                )
+            })
+        }
+        (fill, _) => Err(gap_err(a, gap, step_s, o.max_gap_factor, fill)),
+    }
+}
+
 fn check_gaps(
     rows: Vec<RawRow>,
     step_s: i64,
     o: &WeatherCsvOptions,
+    clear_sky: ClearSky<'_>,
 ) -> Result<Vec<RawRow>, SunError> {
     let allowed_s = (o.max_gap_factor * step_s as f64).round() as i64;
     let mut out = Vec::with_capacity(rows.len());
@@ -448,12 +528,7 @@ fn check_gaps(
         if gap <= allowed_s {
             continue;
         }
-        match o.gap_fill {
-            GapFill::Linear { max_steps } if gap <= (max_steps as i64 + 1) * step_s => {
-                out.extend(fill_between(&w[0], &w[1], step_s));
-            }
-            fill => return Err(gap_err(&w[0], gap, step_s, o.max_gap_factor, fill)),
-        }
+        out.extend(fill_gap(&w[0], &w[1], step_s, o, clear_sky)?);
     }
     out.push(rows[rows.len() - 1]);
     Ok(out)
@@ -462,8 +537,8 @@ fn check_gaps(
 fn gap_err(a: &RawRow, gap_s: i64, step_s: i64, factor: f64, fill: GapFill) -> SunError {
     let fix = match fill {
         GapFill::Refuse => "give the missing records, or ask for a linear gap fill".to_string(),
-        GapFill::Linear { max_steps } => {
-            format!("give the missing records; the linear fill covers gaps up to {max_steps} steps")
+        GapFill::Linear { max_steps } | GapFill::ClearSkyIndex { max_steps } => {
+            format!("give the missing records; the fill covers gaps up to {max_steps} steps")
         }
     };
     input_err(
@@ -531,10 +606,38 @@ pub fn parse_weather_csv(
     options: &WeatherCsvOptions,
     sun: impl Fn(DateTime<Utc>) -> SunPosition,
 ) -> Result<WeatherSeries, SunError> {
+    parse_with(text, options, &sun, None)
+}
+
+/// As [`parse_weather_csv`], with `clear_sky_ghi` giving the site's clear-sky GHI at an
+/// instant (W/m²) for [`GapFill::ClearSkyIndex`].
+pub fn parse_weather_csv_with_clear_sky(
+    text: &str,
+    options: &WeatherCsvOptions,
+    sun: impl Fn(DateTime<Utc>) -> SunPosition,
+    clear_sky_ghi: impl Fn(DateTime<Utc>) -> f64,
+) -> Result<WeatherSeries, SunError> {
+    parse_with(text, options, &sun, Some(&clear_sky_ghi))
+}
+
+fn parse_with(
+    text: &str,
+    options: &WeatherCsvOptions,
+    sun: &dyn Fn(DateTime<Utc>) -> SunPosition,
+    clear_sky: ClearSky<'_>,
+) -> Result<WeatherSeries, SunError> {
     check_options(options)?;
+    if matches!(options.gap_fill, GapFill::ClearSkyIndex { .. }) && clear_sky.is_none() {
+        return Err(SunError::Parameter {
+            name: "gap_fill",
+            value: "clear-sky index".into(),
+            expected: "a clear-sky GHI for the site",
+            fix: "call parse_weather_csv_with_clear_sky, or use the linear fill",
+        });
+    }
     let rows = parse_rows(text, options)?;
     let step_s = median_step_s(&rows).max(1);
-    let rows = check_gaps(rows, step_s, options)?;
+    let rows = check_gaps(rows, step_s, options, clear_sky)?;
     let records = rows.iter().map(|r| complete(r, &sun(r.time))).collect();
     Ok(WeatherSeries {
         records,
