@@ -388,7 +388,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Res
         .axis_desc_style(font(16.0))
         .light_line_style(RGBColor(236, 236, 236))
         .bold_line_style(RGBColor(210, 210, 210))
-        .x_labels(12)
+        .x_labels(13)
         .max_light_lines(2)
         .draw()
         .map_err(draw_err)?;
