@@ -9,6 +9,9 @@ use clap::{ArgGroup, Args};
 use serde::Serialize;
 
 use sunward::report::atomic::write_atomic;
+use sunward::report::plot::{
+    render_png, render_svg, Band, LineChart, PlotError, Series, Side, XKind, YAxis,
+};
 use sunward::sun::irradiance::{LinkeTurbidity, DEFAULT_LINKE_TURBIDITY};
 use sunward::sun::position::{sun_events, sun_position, DeltaT, Observer};
 use sunward::sun::series::{clear_sky_series, sample_at, Sample, SeriesSetup};
@@ -43,6 +46,15 @@ pub struct SunArgs {
     /// With --date: print the day's profile as a table.
     #[arg(long, requires = "date")]
     daily: bool,
+    /// With --daily: also draw the day's profile (sun elevation, GHI/DNI/DHI and POA
+    /// when --tilt-deg is given; night shaded) to FILE.png or FILE.svg.
+    #[arg(long, value_name = "FILE.png|FILE.svg", requires = "daily")]
+    plot: Option<PathBuf>,
+    /// With --daily: UTC offset of the site's clock, hours east (e.g. 2 or -3.5). The
+    /// day then runs 00:00-24:00 local clock time and the plot's axis shows it
+    /// [default: the day runs 00:00-24:00 UT and the axis shows UTC].
+    #[arg(long, value_name = "H", allow_hyphen_values = true, requires = "daily")]
+    utc_offset_h: Option<f64>,
     /// First day of a time series (from 00:00 UT).
     #[arg(long, value_name = "YYYY-MM-DD", requires_all = ["to", "out"])]
     from: Option<NaiveDate>,
@@ -238,9 +250,14 @@ fn step_s(a: &SunArgs) -> Result<i64, Error> {
 }
 
 fn daily(a: &SunArgs, d: NaiveDate) -> Result<(), Error> {
+    let offset_s = utc_offset_s(a)?;
+    if let Some(p) = &a.plot {
+        plot_format(p)?;
+        check_output(p, &[])?;
+    }
     let start = d
         .and_hms_opt(0, 0, 0)
-        .map(|x| x.and_utc())
+        .map(|x| x.and_utc() - Duration::seconds(i64::from(offset_s)))
         .ok_or_else(|| Error::Usage("--date".into()))?;
     let dt_s = delta_t(a).seconds_at(start);
     let s = setup(a, dt_s)?;
@@ -277,6 +294,9 @@ fn daily(a: &SunArgs, d: NaiveDate) -> Result<(), Error> {
             r.clear_sky.dhi_w_m2,
             r.poa_w_m2
         );
+    }
+    if let Some(p) = &a.plot {
+        plot_day(a, d, &s, start, offset_s, p)?;
     }
     Ok(())
 }
@@ -331,5 +351,166 @@ fn series(a: &SunArgs, from: NaiveDate, to: NaiveDate, out: PathBuf) -> Result<(
         parts.iter().try_for_each(|p| w.write_all(p.as_bytes()))
     })?;
     eprintln!("wrote {} rows to {}", n, out.display());
+    Ok(())
+}
+
+/// Time step of the plotted profile, seconds (fine enough for smooth curves and for
+/// night edges within 2.5 min, whatever --step-min the table uses).
+const PLOT_STEP_S: i64 = 300;
+
+/// Picture formats of --plot, by file extension.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum PlotFormat {
+    Png,
+    Svg,
+}
+
+fn plot_format(path: &std::path::Path) -> Result<PlotFormat, Error> {
+    let ext = path
+        .extension()
+        .map(|e| e.to_string_lossy().to_lowercase())
+        .unwrap_or_default();
+    match ext.as_str() {
+        "png" => Ok(PlotFormat::Png),
+        "svg" => Ok(PlotFormat::Svg),
+        _ => Err(Error::Usage(format!(
+            "--plot {}: expected a file ending in .png or .svg",
+            path.display()
+        ))),
+    }
+}
+
+fn utc_offset_s(a: &SunArgs) -> Result<i32, Error> {
+    let h = a.utc_offset_h.unwrap_or(0.0);
+    if !(h.is_finite() && (-14.0..=14.0).contains(&h)) {
+        return Err(Error::Usage(format!(
+            "--utc-offset-h {h}: expected hours from -14 to 14 (e.g. 2 or -3.5)"
+        )));
+    }
+    Ok((h * 3600.0).round() as i32)
+}
+
+fn offset_label(offset_s: i32) -> String {
+    if offset_s == 0 {
+        return "UTC".into();
+    }
+    let sign = if offset_s < 0 { '-' } else { '+' };
+    let m = offset_s.unsigned_abs() / 60;
+    format!("UTC{sign}{:02}:{:02}", m / 60, m % 60)
+}
+
+fn site_label(lat_deg: f64, lon_deg: f64) -> String {
+    let ns = if lat_deg < 0.0 { 'S' } else { 'N' };
+    let ew = if lon_deg < 0.0 { 'W' } else { 'E' };
+    format!("{:.2}° {ns}, {:.2}° {ew}", lat_deg.abs(), lon_deg.abs())
+}
+
+fn epoch_s(t: DateTime<Utc>) -> f64 {
+    t.timestamp_millis() as f64 / 1000.0
+}
+
+/// Night intervals (apparent sun elevation below 0) of the sampled day, with edges
+/// placed by linear interpolation between samples.
+fn night_bands(rows: &[Sample]) -> Vec<(f64, f64)> {
+    let elev = |r: &Sample| rad_to_deg(r.sun.apparent_elevation_rad());
+    let mut bands = Vec::new();
+    let mut open = rows
+        .first()
+        .filter(|r| elev(r) < 0.0)
+        .map(|r| epoch_s(r.time));
+    for w in rows.windows(2) {
+        let (e0, e1) = (elev(&w[0]), elev(&w[1]));
+        if (e0 < 0.0) == (e1 < 0.0) {
+            continue;
+        }
+        let (t0, t1) = (epoch_s(w[0].time), epoch_s(w[1].time));
+        let edge = t0 + (t1 - t0) * e0 / (e0 - e1);
+        match open.take() {
+            Some(start) => bands.push((start, edge)),
+            None => open = Some(edge),
+        }
+    }
+    if let (Some(start), Some(last)) = (open, rows.last()) {
+        bands.push((start, epoch_s(last.time)));
+    }
+    bands
+}
+
+fn line(name: &str, rows: &[Sample], side: Side, f: impl Fn(&Sample) -> f64) -> Series {
+    Series {
+        name: name.into(),
+        points: rows.iter().map(|r| (epoch_s(r.time), f(r))).collect(),
+        side,
+        color: None,
+    }
+}
+
+fn day_chart(a: &SunArgs, d: NaiveDate, rows: &[Sample], offset_s: i32) -> LineChart {
+    let mut series = vec![
+        line("GHI", rows, Side::Left, |r| r.clear_sky.ghi_w_m2),
+        line("DNI", rows, Side::Left, |r| r.clear_sky.dni_w_m2),
+        line("DHI", rows, Side::Left, |r| r.clear_sky.dhi_w_m2),
+    ];
+    if let (Some(t), Some(az)) = (a.tilt_deg, a.panel_azimuth_deg) {
+        series.push(line(
+            &format!("POA (tilt {t}°, azimuth {az}°)"),
+            rows,
+            Side::Left,
+            |r| r.poa_w_m2,
+        ));
+    }
+    let mut elevation = line("sun elevation", rows, Side::Right, |r| {
+        rad_to_deg(r.sun.apparent_elevation_rad())
+    });
+    elevation.color = Some([90, 90, 90]);
+    series.push(elevation);
+    LineChart {
+        title: format!("Clear-sky sun profile, {}, {d}", site_label(a.lat, a.lon)),
+        x_label: format!("time ({})", offset_label(offset_s)),
+        x_kind: XKind::Time {
+            utc_offset_s: offset_s,
+        },
+        y_left: YAxis {
+            label: "irradiance (W/m²)".into(),
+            range: None,
+        },
+        y_right: Some(YAxis {
+            label: "sun elevation (deg, with refraction)".into(),
+            range: None,
+        }),
+        series,
+        bands: night_bands(rows)
+            .into_iter()
+            .map(|x_range| Band {
+                x_range,
+                label: Some("night (sun below horizon)".into()),
+            })
+            .collect(),
+        size_px: (1200, 700),
+    }
+}
+
+fn plot_day(
+    a: &SunArgs,
+    d: NaiveDate,
+    s: &SeriesSetup,
+    start: DateTime<Utc>,
+    offset_s: i32,
+    path: &std::path::Path,
+) -> Result<(), Error> {
+    let n = (86_400 / PLOT_STEP_S) as usize + 1;
+    let rows: Vec<Sample> = clear_sky_series(s, start, PLOT_STEP_S, n, n, |_, c| c.to_vec())
+        .map_err(sun_err)?
+        .into_iter()
+        .flatten()
+        .collect();
+    let chart = day_chart(a, d, &rows, offset_s);
+    let plot_err = |e: PlotError| Error::Usage(e.to_string());
+    let bytes = match plot_format(path)? {
+        PlotFormat::Png => render_png(&chart).map_err(plot_err)?,
+        PlotFormat::Svg => render_svg(&chart).map_err(plot_err)?.into_bytes(),
+    };
+    write_atomic(path, |w| w.write_all(&bytes))?;
+    eprintln!("wrote the day's profile plot to {}", path.display());
     Ok(())
 }

@@ -4,3 +4,4 @@ pub mod atomic;
 pub mod csv;
 pub mod json;
 pub mod map;
+pub mod plot;

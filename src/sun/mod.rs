@@ -16,6 +16,7 @@
 //! Radians for angles, W/m² for irradiance, W for power, °C for temperatures, metres,
 //! hPa for pressure; `DateTime<Utc>` for instants.
 
+pub mod climate;
 pub mod decomposition;
 pub mod error;
 pub mod irradiance;
