@@ -16,6 +16,8 @@ use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::json::{summary, summary_json};
+use sunward::report::plot::{render_png, render_svg};
+use sunward::report::season_plot::{season_chart, seasons_chart};
 use sunward::sun::position::{delta_t_model_s, Observer};
 use sunward::terrain::{horizon, io::read_dem, Dem};
 use sunward::vehicle::plan_model::RoverStepModel;
@@ -261,6 +263,26 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     write_atomic(&out.join("route.geojson"), |w| w.write_all(gj.as_bytes()))?;
     let prof = profile_csv(route);
     write_atomic(&out.join("profile.csv"), |w| w.write_all(prof.as_bytes()))?;
+    let offset = m.site.utc_offset.local_minus_utc();
+    let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
+    let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
+        .iter()
+        .map(|r| {
+            (
+                format!("season-{}", slug(&r.season.name)),
+                season_chart(&m.site.name, r, m.step_s, offset),
+            )
+        })
+        .collect();
+    charts.push(("seasons".to_string(), seasons_chart(&m.site.name, results)));
+    for (name, chart) in &charts {
+        let png = render_png(chart).map_err(plot_err)?;
+        write_atomic(&out.join(format!("{name}.png")), |w| w.write_all(&png))?;
+        let svg = render_svg(chart).map_err(plot_err)?;
+        write_atomic(&out.join(format!("{name}.svg")), |w| {
+            w.write_all(svg.as_bytes())
+        })?;
+    }
     Ok(())
 }
 
@@ -280,6 +302,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, season-*.png/svg, seasons.png/svg", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }

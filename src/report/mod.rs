@@ -5,3 +5,4 @@ pub mod csv;
 pub mod json;
 pub mod map;
 pub mod plot;
+pub mod season_plot;

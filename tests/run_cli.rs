@@ -1,0 +1,101 @@
+//! `sunward run` end to end on the bundled survey mission: summer passes, winter fails
+//! for the reason the physics gives (polar night: no light to recharge, the heater drains
+//! the pack), outputs parse, and --fail-on-infeasible exits 1.
+
+use std::path::PathBuf;
+
+use assert_cmd::Command;
+use serde_json::Value;
+
+fn mission() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("missions/vardholm_survey.toml")
+}
+
+#[test]
+fn survey_mission_summer_passes_winter_fails() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(mission())
+        .arg("--out")
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.path().join("summary.json")).unwrap())
+            .unwrap();
+    assert_eq!(v["schema_version"], 1);
+    let seasons = v["seasons"].as_array().unwrap();
+    assert_eq!(seasons.len(), 4);
+    let by = |n: &str| {
+        seasons
+            .iter()
+            .find(|s| s["name"].as_str().unwrap().starts_with(n))
+            .unwrap()
+    };
+    assert_eq!(by("summer")["feasible"], true, "{}", by("summer")["reason"]);
+    let winter = by("winter");
+    assert_eq!(winter["feasible"], false);
+    assert!(
+        winter["energy_generated_wh"].as_f64().unwrap() < 1.0,
+        "polar night: no light"
+    );
+    assert!(!winter["stranded"].is_null(), "{}", winter["reason"]);
+    for name in [
+        "daily-budget.csv",
+        "route.geojson",
+        "profile.csv",
+        "seasons.png",
+        "seasons.svg",
+        "timeseries-summer-solstice.csv",
+    ] {
+        assert!(dir.path().join(name).is_file(), "missing {name}");
+    }
+    let png = std::fs::File::open(dir.path().join("season-summer-solstice.png")).unwrap();
+    let info = png::Decoder::new(std::io::BufReader::new(png))
+        .read_info()
+        .unwrap()
+        .info()
+        .clone();
+    assert_eq!((info.width, info.height), (1200, 650));
+    let daily = std::fs::read_to_string(dir.path().join("daily-budget.csv")).unwrap();
+    assert!(daily
+        .lines()
+        .next()
+        .unwrap()
+        .starts_with("season,date_local,generated_wh"));
+    let failing = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(mission())
+        .arg("--out")
+        .arg(dir.path())
+        .args(["--season", "winter", "--fail-on-infeasible"])
+        .output()
+        .unwrap();
+    assert_eq!(failing.status.code(), Some(1));
+}
+
+#[test]
+fn a_broken_mission_lists_its_problems_and_exits_2() {
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("bad.toml");
+    std::fs::write(&bad, "[site]\nname = \"x\"\nlat_deg = 123\n").unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(&bad)
+        .arg("--out")
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("bad.toml:3:"), "{err}");
+}
