@@ -1,41 +1,31 @@
 //! `sunward demo`: the bundled scenario end to end.
 //!
-//! Until the mission runner exists, the demo runs what is built on the bundled Vardholm
-//! plateau terrain (a synthetic grid, see terrains/README.md): statistics, slope,
-//! roughness, hillshade, horizon maps and sky-view factor, then the energy-optimal route
-//! of the default rover from the base camp past the cairn to the survey site, with its
-//! profile and a map.
+//! The demo runs the bundled Vardholm plateau survey mission (missions/vardholm_survey.toml
+//! on the synthetic terrain of terrains/vardholm_plateau.tif) end to end: it writes the
+//! mission and its terrain into `OUT/inputs/` (so they can be edited and re-run with
+//! `sunward run`), runs every season, and adds the terrain maps (slope, roughness,
+//! hillshade, horizons, sky-view factor) and a map of the default rover's route from the
+//! base camp past the cairn to the survey site.
 
 use std::io::Cursor;
 use std::path::{Path, PathBuf};
 
 use clap::Args;
 
-use sunward::plan::{
-    plan_route, CellFlags, Connectivity, Objective, Planner, RoutePoint, TiltLimits,
-};
 use sunward::report::atomic::write_atomic;
-use sunward::report::map::route_map_rgb;
-use sunward::terrain::io::{geotiff, png};
-use sunward::terrain::{hillshade, horizon, roughness, slope, Dem};
-use sunward::vehicle::plan_model::RoverStepModel;
-use sunward::vehicle::Rover;
+use sunward::terrain::io::geotiff;
+use sunward::terrain::{horizon, roughness, slope};
 use sunward::Error;
 
 use super::progress::Bar;
-use super::route::{profile_csv, route_geojson, summary_json};
 use super::terrain::{info_of, write_hillshade, write_tif};
-
-/// The demo route on the Vardholm plateau (map metres): base camp, cairn, survey site.
-const DEMO_POINTS: [(&str, f64, f64); 3] = [
-    ("base camp", 220.0, 260.0),
-    ("cairn", 980.0, 1240.0),
-    ("survey site", 1820.0, 1760.0),
-];
 
 /// The bundled demo terrain, compiled into the binary so the demo runs from anywhere.
 const DEMO_TERRAIN: &[u8] = include_bytes!("../../terrains/vardholm_plateau.tif");
 const DEMO_NAME: &str = "terrains/vardholm_plateau.tif";
+/// The bundled mission; its terrain line is pointed at the copy in `OUT/inputs/`.
+const DEMO_MISSION: &str = include_str!("../../missions/vardholm_survey.toml");
+const MISSION_TERRAIN_LINE: &str = "file = \"../terrains/vardholm_plateau.tif\"";
 
 #[derive(Debug, Args)]
 pub struct DemoArgs {
@@ -51,6 +41,23 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     })?;
     let out = |name: &str| a.out.join(name);
     super::check_output(&out("info.json"), &[])?;
+    let inputs = a.out.join("inputs");
+    std::fs::create_dir_all(&inputs).map_err(|source| Error::Output {
+        path: inputs.clone(),
+        source,
+    })?;
+    assert!(
+        DEMO_MISSION.contains(MISSION_TERRAIN_LINE),
+        "the bundled mission names its terrain as the demo expects"
+    );
+    let mission_text =
+        DEMO_MISSION.replace(MISSION_TERRAIN_LINE, "file = \"vardholm_plateau.tif\"");
+    let mission_path = inputs.join("vardholm_survey.toml");
+    write_atomic(&mission_path, |w| w.write_all(mission_text.as_bytes()))?;
+    write_atomic(&inputs.join("vardholm_plateau.tif"), |w| {
+        w.write_all(DEMO_TERRAIN)
+    })?;
+    super::run::run_mission(&mission_path, &a.out, &[])?;
     let dem = geotiff::read_from(Cursor::new(DEMO_TERRAIN), Path::new(DEMO_NAME), u64::MAX)?;
     eprintln!("demo terrain: {DEMO_NAME} (Vardholm plateau, synthetic)");
     let info = info_of(Path::new(DEMO_NAME), &dem);
@@ -75,7 +82,6 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     let svf = horizon::sky_view_map(&dem, &map);
     write_tif(&out("sky_view.tif"), &dem, &[svf.data()])?;
     let (_, _, svf_mean) = svf.stats().unwrap_or((0.0, 0.0, 1.0));
-    let route_line = demo_route(&dem, &a.out)?;
     crate::say!("Vardholm plateau demo terrain");
     crate::say!(
         "  {} x {} cells of {:.1} m, elevation {:.1} .. {:.1} m",
@@ -94,69 +100,15 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
         "  mean sky-view factor {svf_mean:.3} over {} horizon sectors",
         map.sectors()
     );
-    crate::say!("{route_line}");
     crate::say!(
         "outputs in {}: info.json slope.tif roughness.tif hillshade.png horizon.tif sky_view.tif \
-         route.geojson route.json profile.csv route_map.png",
+         and the mission's outputs",
         a.out.display()
     );
-    crate::say!("(solar, battery and mission verdicts are not wired into the demo yet)");
+    crate::say!(
+        "mission inputs in {}: edit them and run `sunward run {}`",
+        inputs.display(),
+        mission_path.display()
+    );
     Ok(())
-}
-
-/// Plans the demo route and writes route.geojson, route.json, profile.csv and
-/// route_map.png; returns a line for the summary.
-fn demo_route(dem: &Dem, out: &Path) -> Result<String, Error> {
-    let rover = Rover::default();
-    let model = RoverStepModel::new(&rover);
-    let flags = CellFlags::from_dem(dem);
-    let limits = TiltLimits {
-        max_pitch_up_rad: rover.max_climb_rad,
-        max_pitch_down_rad: rover.max_descent_rad,
-        max_roll_rad: rover.roll_limit_rad(),
-    };
-    let planner = Planner {
-        dem,
-        flags: &flags,
-        model: &model,
-        limits,
-        connectivity: Connectivity::Sixteen,
-        objective: Objective::ENERGY,
-    };
-    let points: Vec<RoutePoint> = DEMO_POINTS
-        .iter()
-        .map(|&(label, x, y)| RoutePoint {
-            label: label.to_string(),
-            x,
-            y,
-        })
-        .collect();
-    let route = plan_route(&planner, &points)?;
-    let summary = summary_json(&route, Objective::ENERGY, &rover, &limits);
-    let text =
-        serde_json::to_string(&route_geojson(&route, &summary)).expect("JSON values serialise");
-    write_atomic(&out.join("route.geojson"), |w| w.write_all(text.as_bytes()))?;
-    let text = serde_json::to_string_pretty(&summary).expect("JSON values serialise");
-    write_atomic(&out.join("route.json"), |w| w.write_all(text.as_bytes()))?;
-    let text = profile_csv(&route);
-    write_atomic(&out.join("profile.csv"), |w| w.write_all(text.as_bytes()))?;
-    let grey = hillshade::to_grey(&hillshade::hillshade(
-        dem,
-        315f64.to_radians(),
-        45f64.to_radians(),
-    ));
-    let scale = 2;
-    let px = route_map_rgb(&grey, dem.width(), dem.height(), &route, scale);
-    write_atomic(&out.join("route_map.png"), |w| {
-        png::write_rgb8(w, dem.width() * scale, dem.height() * scale, &px)
-    })?;
-    let s = &route.summary;
-    Ok(format!(
-        "  route base camp -> cairn -> survey site: {:.0} m, {:.0} Wh, {:.1} h driving, max pitch {:.1} deg, max roll {:.1} deg",
-        s.length_m,
-        sunward::units::j_to_wh(s.energy_j),
-        s.duration_s / 3600.0,
-        s.max_pitch_rad.to_degrees(),
-        s.max_roll_rad.to_degrees()
-    ))
 }

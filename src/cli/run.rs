@@ -12,14 +12,17 @@ use sunward::mission::resolve::{DrivingHours, Mission, Sky};
 use sunward::mission::runner::{run_seasons, SeasonResult};
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup};
 use sunward::mission::{check, Problem};
+use sunward::plan::route::locate;
 use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::json::{summary, summary_json};
+use sunward::report::map::route_map_rgb;
 use sunward::report::plot::{render_png, render_svg};
 use sunward::report::season_plot::{season_chart, seasons_chart};
 use sunward::sun::position::{delta_t_model_s, Observer};
-use sunward::terrain::{horizon, io::read_dem, Dem};
+use sunward::terrain::io::png;
+use sunward::terrain::{hillshade, horizon, io::read_dem, Dem};
 use sunward::vehicle::plan_model::RoverStepModel;
 use sunward::Error;
 
@@ -105,6 +108,21 @@ fn policy(m: &Mission) -> Policy {
 }
 
 pub fn run(a: RunArgs) -> Result<(), Error> {
+    let feasible = run_mission(&a.mission, &a.out, &a.season)?;
+    if a.fail_on_infeasible && !feasible {
+        std::process::exit(1);
+    }
+    Ok(())
+}
+
+/// Runs a mission file into `out`; returns whether every season was feasible.
+pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, Error> {
+    let a = RunArgs {
+        mission: mission.to_path_buf(),
+        out: out.to_path_buf(),
+        season: only.to_vec(),
+        fail_on_infeasible: false,
+    };
     let m = load_mission(&a.mission)?;
     std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
         path: a.out.clone(),
@@ -138,12 +156,9 @@ pub fn run(a: RunArgs) -> Result<(), Error> {
     );
     let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
     let results = simulate_seasons(&m, &route, &horizons, &a.season)?;
-    write_outputs(&a.out, &m, &route, &planner, &results)?;
+    write_outputs(&a.out, &m, &dem, &route, &planner, &results)?;
     print_verdicts(&m, &results, &a.out);
-    if a.fail_on_infeasible && results.iter().any(|r| !r.summary.feasible) {
-        std::process::exit(1);
-    }
-    Ok(())
+    Ok(results.iter().all(|r| r.summary.feasible))
 }
 
 fn simulate_seasons(
@@ -229,6 +244,7 @@ fn slug(name: &str) -> String {
 fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     out: &Path,
     m: &Mission,
+    dem: &Dem,
     route: &Route,
     planner: &Planner<'_, M>,
     results: &[SeasonResult],
@@ -263,6 +279,25 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     write_atomic(&out.join("route.geojson"), |w| w.write_all(gj.as_bytes()))?;
     let prof = profile_csv(route);
     write_atomic(&out.join("profile.csv"), |w| w.write_all(prof.as_bytes()))?;
+    let grey = hillshade::to_grey(&hillshade::hillshade(
+        dem,
+        315f64.to_radians(),
+        45f64.to_radians(),
+    ));
+    let scale = (1024 / dem.width().max(dem.height())).clamp(1, 4);
+    let w = dem.width();
+    let sites: Vec<(usize, usize)> = m
+        .route
+        .waypoints
+        .iter()
+        .chain(m.route.sites.iter().map(|s| &s.place))
+        .filter_map(|p| locate(planner, &p.point).ok())
+        .map(|c| (c % w, c / w))
+        .collect();
+    let px = route_map_rgb(&grey, dem.width(), dem.height(), route, &sites, scale);
+    write_atomic(&out.join("route_map.png"), |wr| {
+        png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
+    })?;
     let offset = m.site.utc_offset.local_minus_utc();
     let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
     let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
@@ -302,6 +337,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, season-*.png/svg, seasons.png/svg", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }

@@ -1,6 +1,7 @@
 //! The route over shaded relief, as RGB pixels: grey hillshade, the route coloured by
 //! step energy (blue = low or regenerating, through yellow, to red = the most costly
-//! steps of this route), the start in green and the goal in white on black. Each grid
+//! steps of this route), the start in green, the goal in white and the sites and
+//! waypoints in yellow, each on a black outline. Each grid
 //! cell is drawn as `scale × scale` pixels so small grids stay readable.
 //!
 //! # Units
@@ -30,6 +31,7 @@ pub fn route_map_rgb(
     width: usize,
     height: usize,
     route: &Route,
+    sites: &[(usize, usize)],
     scale: usize,
 ) -> Vec<u8> {
     let (pw, ph) = (width * scale, height * scale);
@@ -60,6 +62,10 @@ pub fn route_map_rgb(
         paint(p.col, p.row, ramp(t), line);
     }
     let mark = (scale * 3).max(4);
+    for &(c, r) in sites {
+        paint(c, r, [0, 0, 0], mark);
+        paint(c, r, [250, 215, 40], mark - 1);
+    }
     if let (Some(a), Some(b)) = (route.profile.first(), route.profile.last()) {
         paint(a.col, a.row, [0, 0, 0], mark + 1);
         paint(a.col, a.row, [40, 200, 60], mark);
