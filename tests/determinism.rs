@@ -11,6 +11,7 @@ fn files(dir: &Path) -> Vec<(String, Vec<u8>)> {
     let mut v: Vec<(String, Vec<u8>)> = std::fs::read_dir(dir)
         .unwrap()
         .map(|e| e.unwrap().path())
+        .filter(|p| p.is_file())
         .map(|p| {
             (
                 p.file_name().unwrap().to_string_lossy().into_owned(),

@@ -156,7 +156,8 @@ pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, 
     );
     let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
     let results = simulate_seasons(&m, &route, &horizons, &a.season)?;
-    write_outputs(&a.out, &m, &dem, &route, &planner, &results)?;
+    let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
+    write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
     print_verdicts(&m, &results, &a.out);
     Ok(results.iter().all(|r| r.summary.feasible))
 }
@@ -241,7 +242,18 @@ fn slug(name: &str) -> String {
         .collect()
 }
 
+/// The terrain path as the mission file gives it (relative to the mission's folder), so
+/// that summary.json does not depend on where the mission was run from.
+fn terrain_label(m: &Mission, mission_dir: &Path) -> String {
+    let p = &m.terrain.dem_path;
+    p.strip_prefix(mission_dir)
+        .unwrap_or(p)
+        .display()
+        .to_string()
+}
+
 fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
+    mission_dir: &Path,
     out: &Path,
     m: &Mission,
     dem: &Dem,
@@ -253,7 +265,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         "site": {"name": m.site.name, "lat_deg": m.site.latitude_rad.to_degrees(),
                  "lon_deg": m.site.longitude_rad.to_degrees(), "elevation_m": m.site.elevation_m,
                  "utc_offset": m.site.utc_offset.to_string()},
-        "terrain_file": m.terrain.dem_path.display().to_string(),
+        "terrain_file": terrain_label(m, mission_dir),
         "route_length_m": route.summary.length_m,
         "battery_capacity_wh": m.battery.capacity_wh,
         "panel_area_m2": m.panels.panel.area_m2,
