@@ -108,6 +108,8 @@ fn setup<'a>(
         initial_soc,
         thermal: &s.thermal,
         initial_box_temp_c: Some(20.0),
+        // Every watt of the electronics heats the box (the harshest case).
+        electronics_heat_share: 1.0,
         loads: &s.loads,
         panel,
         mount: Mount::BodyFixed {

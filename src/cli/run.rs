@@ -107,6 +107,11 @@ fn policy(m: &Mission) -> Policy {
     }
 }
 
+/// Share of the hotel and payload power that heats the battery box: 0.3 is an
+/// assumption with no source (electronics mostly outside an insulated battery box); it
+/// belongs in the mission's `[thermal]` table once the file has the key.
+const ELECTRONICS_HEAT_SHARE: f64 = 0.3;
+
 pub fn run(a: RunArgs) -> Result<(), Error> {
     let feasible = run_mission(&a.mission, &a.out, &a.season)?;
     if a.fail_on_infeasible && !feasible {
@@ -193,6 +198,7 @@ fn simulate_seasons(
         initial_soc: 1.0,
         thermal: &thermal,
         initial_box_temp_c: None,
+        electronics_heat_share: ELECTRONICS_HEAT_SHARE,
         loads: &m.loads,
         panel: &m.panels.panel,
         mount: m.panels.mount,

@@ -15,8 +15,9 @@
 //!    route step (body-mounted panels follow pitch, roll and heading), terrain shading of
 //!    the current cell from the horizon map, PV power at the cell temperature.
 //! 4. **Loads**: hotel power while awake; the named loads by their schedules.
-//! 5. **Thermal**: one node; internal heat = electronics (hotel + payload) + last step's
-//!    I²R loss; the thermostat heater draws from the pack.
+//! 5. **Thermal**: one node; internal heat = the share of the electronics' power (hotel +
+//!    payload) dissipated inside the battery box + last step's I²R loss; the thermostat
+//!    heater draws from the pack.
 //! 6. **Pack**: the net terminal power (loads + heater + drive − solar) for `step_s` at
 //!    the node's temperature; unaccepted solar is curtailed; a shortfall strands the rover.
 //!
@@ -123,6 +124,8 @@ pub struct SimSetup<'a> {
     pub thermal: &'a ThermalNode,
     /// Box temperature at the start, °C (None: the ambient temperature).
     pub initial_box_temp_c: Option<f64>,
+    /// Share (0..1) of the hotel and payload power dissipated inside the battery box.
+    pub electronics_heat_share: f64,
     /// Named loads.
     pub loads: &'a Loads,
     /// Panels.
@@ -254,6 +257,13 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     };
     if !(setup.step_s >= 1.0 && setup.step_s <= 60.0) {
         return Err(bad("step_s", setup.step_s, "1 to 60 seconds"));
+    }
+    if !(0.0..=1.0).contains(&setup.electronics_heat_share) {
+        return Err(bad(
+            "electronics_heat_share",
+            setup.electronics_heat_share,
+            "a fraction from 0 to 1",
+        ));
     }
     if !(0.0..=1.0).contains(&setup.initial_soc) {
         return Err(bad(
@@ -403,7 +413,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             &box_state,
             &ThermalInput {
                 ambient_c: air_c,
-                internal_heat_w: hotel_w + payload_w + last_loss_w,
+                internal_heat_w: setup.electronics_heat_share * (hotel_w + payload_w) + last_loss_w,
                 irradiance_w_m2: 0.0,
                 dt_s: dt,
             },
