@@ -138,6 +138,7 @@ fn parked_day() -> Policy {
         resume_soc: 0.0,
         deadline_s: 86_400.0,
         end: EndCondition::Deadline,
+        sleep_outside_hours: true,
     }
 }
 
@@ -268,6 +269,7 @@ fn energy_closes_and_soc_stays_in_bounds_on_a_drive() {
         resume_soc: 0.6,
         deadline_s: 3.0 * 86_400.0,
         end: EndCondition::Arrival,
+        sleep_outside_hours: true,
     };
     let run = simulate(
         &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.7),
@@ -434,6 +436,7 @@ fn seasons_at_70_north_summer_passes_winter_cannot_drive() {
         resume_soc: 0.6,
         deadline_s: 4.0 * 86_400.0,
         end: EndCondition::Arrival,
+        sleep_outside_hours: true,
     };
     let set = setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.6);
     let seasons = solstices_equinoxes(2031, true, chrono::FixedOffset::east_opt(0).unwrap());
@@ -499,4 +502,32 @@ fn seasons_at_70_north_summer_passes_winter_cannot_drive() {
         .starts_with("2031-06-2"));
     let csv = sunward::report::csv::timeseries_csv(&by("summer").run.samples);
     assert_eq!(csv.lines().count(), by("summer").run.samples.len() + 1);
+}
+
+/// Staying awake at night costs the hotel load: in polar night with `sleep_outside_hours`
+/// off, the parked rover draws its 25 W hotel load for 24 h = 600 Wh (hand arithmetic).
+#[test]
+fn awake_overnight_draws_the_hotel_load() {
+    let dem = flat(5);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (5.0, -5.0), (5.0, -5.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(80f64.to_radians(), 15f64.to_radians(), 0.0).unwrap();
+    let policy = Policy {
+        drive_hours: DriveHours::Daylight,
+        sleep_outside_hours: false,
+        ..parked_day()
+    };
+    let run = simulate(
+        &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.9),
+        midnight("2031-12-21"),
+    )
+    .unwrap();
+    assert!(
+        (run.ledger.hotel_wh - 600.0).abs() < 1e-9,
+        "{}",
+        run.ledger.hotel_wh
+    );
+    assert!(run.samples.iter().all(|x| x.activity == 1));
 }

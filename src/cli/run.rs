@@ -8,7 +8,7 @@ use clap::Args;
 use sunward::battery::ambient::Ambient;
 use sunward::battery::pack::Pack;
 use sunward::battery::thermal::ThermalNode;
-use sunward::mission::resolve::{DrivingHours, Mission, Sky};
+use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
 use sunward::mission::runner::{run_seasons, SeasonResult};
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup};
 use sunward::mission::{check, Problem};
@@ -104,6 +104,7 @@ fn policy(m: &Mission) -> Policy {
         resume_soc: m.policy.park_and_charge_to_soc,
         deadline_s: m.policy.deadline_s,
         end: EndCondition::Arrival,
+        sleep_outside_hours: m.policy.overnight == Overnight::Sleep,
     }
 }
 

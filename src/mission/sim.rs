@@ -6,7 +6,8 @@
 //! 1. **Decide** what the rover does ([`Activity`]): inside the driving hours of the
 //!    policy it drives when its state of charge is at least `min_soc_to_drive`; once it
 //!    has had to stop for that reason it parks and charges until `resume_soc`; outside
-//!    the driving hours it sleeps (hotel off, only loads scheduled for sleep or always).
+//!    the driving hours it sleeps (hotel off, only loads scheduled for sleep or always),
+//!    or stays awake and parked when the policy says so.
 //! 2. **Drive** along the route profile at the vehicle model's speed: the drive energy of
 //!    each route step (its battery energy minus the hotel energy of its driving time) is
 //!    spread over its driving time; partial steps are prorated.
@@ -90,6 +91,8 @@ pub struct Policy {
     pub deadline_s: f64,
     /// When the run ends.
     pub end: EndCondition,
+    /// Outside the driving hours the rover sleeps (true) or stays awake, parked (false).
+    pub sleep_outside_hours: bool,
 }
 
 /// The sun and sky side of a run.
@@ -355,8 +358,10 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             charge_hold = false;
         }
         let arrived = run.arrival.is_some();
-        let activity = if !in_hours {
+        let activity = if !in_hours && setup.policy.sleep_outside_hours {
             Activity::Asleep
+        } else if !in_hours {
+            Activity::Parked
         } else if arrived || charge_hold {
             Activity::Parked
         } else if pack_state.soc >= setup.policy.min_soc_to_drive {
