@@ -360,9 +360,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         let arrived = run.arrival.is_some();
         let activity = if !in_hours && setup.policy.sleep_outside_hours {
             Activity::Asleep
-        } else if !in_hours {
-            Activity::Parked
-        } else if arrived || charge_hold {
+        } else if !in_hours || arrived || charge_hold {
             Activity::Parked
         } else if pack_state.soc >= setup.policy.min_soc_to_drive {
             Activity::Driving
