@@ -188,14 +188,7 @@ pub fn render_svg(chart: &LineChart) -> Result<String, PlotError> {
 
 fn encode_png(rgb: &[u8], w: u32, h: u32) -> Result<Vec<u8>, PlotError> {
     let mut out = Vec::new();
-    {
-        let mut enc = png::Encoder::new(&mut out, w, h);
-        enc.set_color(png::ColorType::Rgb);
-        enc.set_depth(png::BitDepth::Eight);
-        let mut writer = enc.write_header().map_err(draw_err)?;
-        writer.write_image_data(rgb).map_err(draw_err)?;
-        writer.finish().map_err(draw_err)?;
-    }
+    crate::terrain::io::png::write_rgb8(&mut out, w as usize, h as usize, rgb).map_err(draw_err)?;
     Ok(out)
 }
 

@@ -110,6 +110,23 @@ pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, Terrai
     ))
 }
 
+/// Encodes row-major sample bytes of one colour type and depth as a PNG.
+fn encode<W: Write>(
+    out: W,
+    width: usize,
+    height: usize,
+    color: png::ColorType,
+    depth: png::BitDepth,
+    bytes: &[u8],
+) -> std::io::Result<()> {
+    let mut enc = png::Encoder::new(out, width as u32, height as u32);
+    enc.set_color(color);
+    enc.set_depth(depth);
+    let mut w = enc.write_header().map_err(std::io::Error::other)?;
+    w.write_image_data(bytes).map_err(std::io::Error::other)?;
+    w.finish().map_err(std::io::Error::other)
+}
+
 /// Encodes 8-bit greyscale pixels (row-major) as a PNG picture.
 pub fn write_gray8<W: Write>(
     out: W,
@@ -117,12 +134,14 @@ pub fn write_gray8<W: Write>(
     height: usize,
     pixels: &[u8],
 ) -> std::io::Result<()> {
-    let mut enc = png::Encoder::new(out, width as u32, height as u32);
-    enc.set_color(png::ColorType::Grayscale);
-    enc.set_depth(png::BitDepth::Eight);
-    let mut w = enc.write_header().map_err(std::io::Error::other)?;
-    w.write_image_data(pixels).map_err(std::io::Error::other)?;
-    w.finish().map_err(std::io::Error::other)
+    encode(
+        out,
+        width,
+        height,
+        png::ColorType::Grayscale,
+        png::BitDepth::Eight,
+        pixels,
+    )
 }
 
 /// Encodes 16-bit greyscale samples (row-major) as a PNG heightmap.
@@ -132,13 +151,15 @@ pub fn write_gray16<W: Write>(
     height: usize,
     samples: &[u16],
 ) -> std::io::Result<()> {
-    let mut enc = png::Encoder::new(out, width as u32, height as u32);
-    enc.set_color(png::ColorType::Grayscale);
-    enc.set_depth(png::BitDepth::Sixteen);
-    let mut w = enc.write_header().map_err(std::io::Error::other)?;
     let bytes: Vec<u8> = samples.iter().flat_map(|v| v.to_be_bytes()).collect();
-    w.write_image_data(&bytes).map_err(std::io::Error::other)?;
-    w.finish().map_err(std::io::Error::other)
+    encode(
+        out,
+        width,
+        height,
+        png::ColorType::Grayscale,
+        png::BitDepth::Sixteen,
+        &bytes,
+    )
 }
 
 /// Encodes 8-bit RGB pixels (row-major, 3 bytes each) as a PNG picture.
@@ -148,10 +169,12 @@ pub fn write_rgb8<W: Write>(
     height: usize,
     pixels: &[u8],
 ) -> std::io::Result<()> {
-    let mut enc = png::Encoder::new(out, width as u32, height as u32);
-    enc.set_color(png::ColorType::Rgb);
-    enc.set_depth(png::BitDepth::Eight);
-    let mut w = enc.write_header().map_err(std::io::Error::other)?;
-    w.write_image_data(pixels).map_err(std::io::Error::other)?;
-    w.finish().map_err(std::io::Error::other)
+    encode(
+        out,
+        width,
+        height,
+        png::ColorType::Rgb,
+        png::BitDepth::Eight,
+        pixels,
+    )
 }
