@@ -16,6 +16,7 @@ use sunward::plan::route::locate;
 use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
+use sunward::report::html::{report_html, Figure, PageContext};
 use sunward::report::json::{summary, summary_json};
 use sunward::report::map::route_map_rgb;
 use sunward::report::plot::{render_png, render_svg};
@@ -249,6 +250,78 @@ fn slug(name: &str) -> String {
         .collect()
 }
 
+/// The page's fixed text: the route and the assumptions with their sources.
+fn page_context(m: &Mission, route: &Route) -> PageContext {
+    let a = |w: &str, v: String, s: &str| (w.to_string(), v, s.to_string());
+    PageContext {
+        mission: m.site.name.clone(),
+        route_line: format!(
+            "Route: {:.0} m along the ground, {:.0} Wh of battery energy, {:.1} h of driving \
+             (planned by exact A* on the terrain grid).",
+            route.summary.length_m,
+            sunward::units::j_to_wh(route.summary.energy_j),
+            route.summary.duration_s / 3600.0
+        ),
+        assumptions: vec![
+            a(
+                "sun position",
+                "NREL SPA".into(),
+                "Reda and Andreas, NREL/TP-560-34302",
+            ),
+            a(
+                "irradiance",
+                "clear sky, Ineichen-Perez".into(),
+                "Ineichen and Perez, Solar Energy 73(3), 2002",
+            ),
+            a(
+                "panel plane",
+                format!("{:?}", m.weather.sky_model),
+                "Hay and Davies 1980 / Perez et al. 1990",
+            ),
+            a(
+                "ground albedo",
+                format!("{}", m.weather.albedo),
+                "mission file",
+            ),
+            a(
+                "terrain shading",
+                "32 horizon sectors".into(),
+                "convex-hull sweeps, Stewart 1998",
+            ),
+            a(
+                "traction",
+                format!("C_rr {}", m.rover.rolling_resistance),
+                "mission file; Bekker / Wong (2008) for soils",
+            ),
+            a(
+                "drive efficiency",
+                format!("{}", m.rover.drive_efficiency),
+                "mission file",
+            ),
+            a(
+                "battery",
+                format!(
+                    "{} Wh {}",
+                    m.battery.capacity_wh.unwrap_or(f64::NAN),
+                    m.battery.chemistry.preset().name
+                ),
+                "mission file; OCV tables from PyBaMM parameter sets",
+            ),
+            a(
+                "battery box heating",
+                format!("{ELECTRONICS_HEAT_SHARE} of the electronics' power"),
+                "assumption, no source",
+            ),
+            a(
+                "start of each season",
+                "local midnight, full pack".into(),
+                "sunward convention",
+            ),
+            a("simulation step", format!("{} s", m.step_s), "mission file"),
+        ],
+    }
+}
+
 /// The terrain path as the mission file gives it (relative to the mission's folder), so
 /// that summary.json does not depend on where the mission was run from.
 fn terrain_label(m: &Mission, mission_dir: &Path) -> String {
@@ -329,6 +402,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         })
         .collect();
     charts.push(("seasons".to_string(), seasons_chart(&m.site.name, results)));
+    let mut figures = Vec::new();
     for (name, chart) in &charts {
         let png = render_png(chart).map_err(plot_err)?;
         write_atomic(&out.join(format!("{name}.png")), |w| w.write_all(&png))?;
@@ -336,7 +410,29 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         write_atomic(&out.join(format!("{name}.svg")), |w| {
             w.write_all(svg.as_bytes())
         })?;
+        figures.push(Figure {
+            caption: chart.title.clone(),
+            png,
+        });
     }
+    let mut map_png = Vec::new();
+    png::write_rgb8(&mut map_png, dem.width() * scale, dem.height() * scale, &px).map_err(
+        |source| Error::Output {
+            path: out.join("report.html"),
+            source,
+        },
+    )?;
+    figures.insert(
+        0,
+        Figure {
+            caption: "Route over the shaded relief, coloured by step energy (blue: cheapest, \
+                      red: most costly); start green, goal white, sites and waypoints yellow"
+                .into(),
+            png: map_png,
+        },
+    );
+    let html = report_html(&page_context(m, route), results, &figures);
+    write_atomic(&out.join("report.html"), |w| w.write_all(html.as_bytes()))?;
     Ok(())
 }
 
@@ -356,6 +452,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg, report.html", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }

@@ -2,6 +2,7 @@
 
 pub mod atomic;
 pub mod csv;
+pub mod html;
 pub mod json;
 pub mod map;
 pub mod plot;
