@@ -77,6 +77,7 @@ fn main() {
             sleep_outside_hours: true,
         },
         step_s: 10.0,
+        stops: Vec::new(),
     };
     let t = Instant::now();
     let results = run_seasons(&setup, &m.seasons).unwrap();

@@ -128,6 +128,7 @@ fn setup<'a>(
         utc_offset_s: 0,
         policy,
         step_s: 60.0,
+        stops: Vec::new(),
     }
 }
 
@@ -530,4 +531,46 @@ fn awake_overnight_draws_the_hotel_load() {
         run.ledger.hotel_wh
     );
     assert!(run.samples.iter().all(|x| x.activity == 1));
+}
+
+/// A payload stop: the rover parks at the site row for its 60-minute run, the `at_site`
+/// load of 100 W runs exactly then (100 W × 1 h = 100 Wh, hand arithmetic), and arrival
+/// comes 60 minutes later than without the stop.
+#[test]
+fn payload_stop_runs_the_site_load_and_delays_arrival() {
+    use sunward::battery::loads::Schedule;
+    use sunward::mission::sim::Stop;
+    let dem = flat(40);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (5.0, -5.0), (75.0, -5.0));
+    let load = LoadSpec {
+        name: "drill".into(),
+        power_w: 100.0,
+        duty: 1.0,
+        schedule: Schedule::AtSite { minutes: 60.0 },
+    };
+    let s = stages(vec![load]);
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(45f64.to_radians(), 7f64.to_radians(), 0.0).unwrap();
+    let policy = Policy {
+        drive_hours: DriveHours::Always,
+        end: EndCondition::Arrival,
+        ..parked_day()
+    };
+    let mut set = setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.9);
+    let plain = simulate(&set, midnight("2031-06-21")).unwrap();
+    set.stops = vec![Stop {
+        row: route.profile.len() / 2,
+        duration_s: 3600.0,
+    }];
+    let stopped = simulate(&set, midnight("2031-06-21")).unwrap();
+    assert_eq!(plain.ledger.payload_wh, 0.0);
+    assert!(
+        (stopped.ledger.payload_wh - 100.0).abs() < 1e-9,
+        "{}",
+        stopped.ledger.payload_wh
+    );
+    let delay = (stopped.arrival.unwrap() - plain.arrival.unwrap()).num_seconds();
+    assert!((3600..=3660).contains(&delay), "delay {delay} s");
+    assert!((stopped.ledger.drive_wh - plain.ledger.drive_wh).abs() < 1e-9);
 }

@@ -10,7 +10,7 @@ use sunward::battery::pack::Pack;
 use sunward::battery::thermal::ThermalNode;
 use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
 use sunward::mission::runner::{run_seasons, SeasonResult};
-use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup};
+use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
 use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
@@ -93,6 +93,39 @@ fn route_points(m: &Mission) -> Vec<RoutePoint> {
     pts
 }
 
+/// The payload stops: the profile row where the route reaches each site, walking the
+/// route points in order (start, waypoints, sites, goal).
+fn site_stops<M: sunward::plan::StepModel + ?Sized>(
+    m: &Mission,
+    planner: &Planner<'_, M>,
+    route: &Route,
+) -> Vec<Stop> {
+    let w = planner.dem.width();
+    let mut from = 0;
+    let mut stops = Vec::new();
+    let points = route_points(m);
+    let first_site = 1 + m.route.waypoints.len();
+    for (i, p) in points.iter().enumerate().skip(1) {
+        let Ok(cell) = locate(planner, p) else {
+            continue;
+        };
+        let Some(k) = route.profile[from..]
+            .iter()
+            .position(|r| r.row * w + r.col == cell)
+        else {
+            continue;
+        };
+        from += k;
+        if i >= first_site && i < first_site + m.route.sites.len() {
+            stops.push(Stop {
+                row: from,
+                duration_s: m.route.sites[i - first_site].payload_s,
+            });
+        }
+    }
+    stops
+}
+
 fn policy(m: &Mission) -> Policy {
     let drive_hours = match m.policy.driving {
         DrivingHours::Daylight => DriveHours::Daylight,
@@ -162,7 +195,8 @@ pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, 
         route.summary.duration_s / 3600.0
     );
     let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
-    let results = simulate_seasons(&m, &route, &horizons, &a.season)?;
+    let stops = site_stops(&m, &planner, &route);
+    let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season)?;
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
     print_verdicts(&m, &results, &a.out);
@@ -172,6 +206,7 @@ pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, 
 fn simulate_seasons(
     m: &Mission,
     route: &Route,
+    stops: &[Stop],
     horizons: &horizon::HorizonMap,
     only: &[String],
 ) -> Result<Vec<SeasonResult>, Error> {
@@ -217,6 +252,7 @@ fn simulate_seasons(
         utc_offset_s: i64::from(m.site.utc_offset.local_minus_utc()),
         policy: policy(m),
         step_s: m.step_s,
+        stops: stops.to_vec(),
     };
     let seasons: Vec<_> = m
         .seasons

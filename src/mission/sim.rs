@@ -27,10 +27,13 @@
 //! cold to discharge or the heater took a quarter or more of the energy used in the last
 //! 24 h, otherwise `light`.
 //!
+//! Payload stops: on reaching a site the rover parks for its payload run (loads
+//! scheduled `at_site` run, the site clock counts even outside the driving hours), then
+//! drives on.
+//!
 //! # Limits
-//! Clear-sky irradiance only (an upper bound of real skies); sites' payload runs are not
-//! scheduled yet (loads scheduled `at_site` never run); acceleration and turning energy
-//! are left out; the rover's state inside a step is taken as constant.
+//! Clear-sky irradiance only (an upper bound of real skies); acceleration and turning
+//! energy are left out; the rover's state inside a step is taken as constant.
 //!
 //! # Units
 //! Seconds, watts, watt-hours, degrees Celsius, radians.
@@ -112,6 +115,16 @@ pub struct SkySetup {
     pub wind_m_s: f64,
 }
 
+/// A payload stop: when the rover reaches profile row `row`, it parks there for
+/// `duration_s` with the site's clock running (loads scheduled `at_site` run).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Stop {
+    /// Index of the route profile row of the site.
+    pub row: usize,
+    /// Length of the payload run, seconds.
+    pub duration_s: f64,
+}
+
 /// Everything one run needs; the stages' own checked types.
 #[derive(Debug, Clone)]
 pub struct SimSetup<'a> {
@@ -147,6 +160,8 @@ pub struct SimSetup<'a> {
     pub policy: Policy,
     /// Step length, seconds (1..=60).
     pub step_s: f64,
+    /// Payload stops along the route, in route order.
+    pub stops: Vec<Stop>,
 }
 
 /// Why a run stopped short.
@@ -336,6 +351,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
     let reserve = setup.pack.params().reserve_soc;
     let dt = setup.step_s;
     let (mut charge_hold, mut last_loss_w) = (false, 0.0);
+    // The next stop to make, and the seconds already spent at the current one.
+    let (mut next_stop, mut at_site_s): (usize, Option<f64>) = (0, None);
     let mut day_window: std::collections::VecDeque<(f64, f64)> = Default::default();
     let steps = (setup.policy.deadline_s / dt).ceil() as usize;
     for k in 0..steps {
@@ -358,9 +375,15 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             charge_hold = false;
         }
         let arrived = run.arrival.is_some();
-        let activity = if !in_hours && setup.policy.sleep_outside_hours {
+        if let Some(stop) = setup.stops.get(next_stop) {
+            if at_site_s.is_none() && prog.next > stop.row && prog.into_step_s == 0.0 {
+                at_site_s = Some(0.0);
+            }
+        }
+        let at_site = at_site_s.is_some();
+        let activity = if !in_hours && setup.policy.sleep_outside_hours && !at_site {
             Activity::Asleep
-        } else if !in_hours || arrived || charge_hold {
+        } else if !in_hours || arrived || charge_hold || at_site {
             Activity::Parked
         } else if pack_state.soc >= setup.policy.min_soc_to_drive {
             Activity::Driving
@@ -375,8 +398,9 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             }
         }
         // Drive.
+        let stop_row = setup.stops.get(next_stop).map_or(usize::MAX, |s| s.row);
         let (drive_j, drive_s) = if activity == Activity::Driving {
-            drive(setup, &mut prog, dt, &mut run.distance_m)
+            drive(setup, &mut prog, dt, &mut run.distance_m, stop_row)
         } else {
             (0.0, 0.0)
         };
@@ -406,10 +430,20 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             local_time_s: local_s,
             activity,
             daylight,
-            site_elapsed_s: None,
+            site_elapsed_s: at_site_s,
             elapsed_s: k as f64 * dt,
         };
         let payload_w = setup.loads.total_w(&ctx);
+        if let Some(t_site) = at_site_s {
+            let done = t_site + dt;
+            let needed = setup.stops.get(next_stop).map_or(0.0, |s| s.duration_s);
+            if done >= needed {
+                at_site_s = None;
+                next_stop += 1;
+            } else {
+                at_site_s = Some(done);
+            }
+        }
         let drive_w = drive_j / dt;
         // Thermal.
         let th = setup.thermal.step(
@@ -554,11 +588,18 @@ fn stranding(
 
 /// Advances along the profile for up to `dt` seconds; returns (drive energy J, seconds
 /// driven).
-fn drive(setup: &SimSetup<'_>, prog: &mut Progress, dt: f64, distance_m: &mut f64) -> (f64, f64) {
+fn drive(
+    setup: &SimSetup<'_>,
+    prog: &mut Progress,
+    dt: f64,
+    distance_m: &mut f64,
+    stop_row: usize,
+) -> (f64, f64) {
     let profile = &setup.route.profile;
     let hotel = setup.rover.hotel_power_w;
     let (mut left, mut energy) = (dt, 0.0);
-    while left > 0.0 && prog.next < profile.len() {
+    // Stop on reaching the row of the next payload stop (the rover is at row next − 1).
+    while left > 0.0 && prog.next < profile.len() && prog.next <= stop_row {
         let row = &profile[prog.next];
         let step_t = row.step_time_s.max(1e-9);
         let take = (step_t - prog.into_step_s).min(left);
