@@ -64,6 +64,18 @@ fn survey_mission_summer_passes_winter_fails() {
         .info()
         .clone();
     assert_eq!((info.width, info.height), (1200, 650));
+    let gj: geojson::GeoJson = std::fs::read_to_string(dir.path().join("route.geojson"))
+        .unwrap()
+        .parse()
+        .unwrap();
+    let geojson::GeoJson::FeatureCollection(fc) = gj else {
+        panic!("a FeatureCollection")
+    };
+    let geom = fc.features[0].geometry.as_ref().unwrap();
+    assert!(matches!(
+        geom.value,
+        geojson::GeometryValue::LineString { .. }
+    ));
     let daily = std::fs::read_to_string(dir.path().join("daily-budget.csv")).unwrap();
     assert!(daily
         .lines()

@@ -1,5 +1,5 @@
-//! A plain progress line on standard error: redrawn in place on a terminal, one line at
-//! start and end otherwise (logs stay readable).
+//! A plain progress line on standard error, redrawn in place on a terminal; silent when
+//! standard error is not a terminal (logs and pipes stay clean).
 
 use std::io::{IsTerminal, Write};
 use std::sync::Mutex;
@@ -31,7 +31,7 @@ impl Bar {
 impl Progress for Bar {
     fn start(&self, label: &str, total: u64) {
         if !self.tty {
-            eprintln!("{label}: {total} to do");
+            return;
         }
         *self.state.lock().unwrap() = Some(State {
             label: label.to_string(),
@@ -65,10 +65,7 @@ impl Progress for Bar {
     fn finish(&self) {
         if let Some(s) = self.state.lock().unwrap().take() {
             let secs = s.started.elapsed().as_secs_f64();
-            if self.tty {
-                eprintln!();
-            }
-            eprintln!("{}: done in {secs:.1} s", s.label);
+            eprintln!("\r{}: done in {secs:.1} s{}", s.label, " ".repeat(24));
         }
     }
 }
