@@ -57,7 +57,7 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     write_atomic(&inputs.join("vardholm_plateau.tif"), |w| {
         w.write_all(DEMO_TERRAIN)
     })?;
-    super::run::run_mission(&mission_path, &a.out, &[])?;
+    super::run::run_mission(&mission_path, &a.out, &[], false)?;
     let dem = geotiff::read_from(Cursor::new(DEMO_TERRAIN), Path::new(DEMO_NAME), u64::MAX)?;
     eprintln!("demo terrain: {DEMO_NAME} (Vardholm plateau, synthetic)");
     let info = info_of(Path::new(DEMO_NAME), &dem);

@@ -43,6 +43,9 @@ pub struct RunArgs {
     /// Exit with code 1 when any season is infeasible.
     #[arg(long)]
     fail_on_infeasible: bool,
+    /// No progress display.
+    #[arg(long, short = 'q')]
+    quiet: bool,
 }
 
 /// Reads and checks the mission file, listing every problem on failure.
@@ -148,7 +151,7 @@ fn policy(m: &Mission) -> Policy {
 const ELECTRONICS_HEAT_SHARE: f64 = 0.3;
 
 pub fn run(a: RunArgs) -> Result<(), Error> {
-    let feasible = run_mission(&a.mission, &a.out, &a.season)?;
+    let feasible = run_mission(&a.mission, &a.out, &a.season, a.quiet)?;
     if a.fail_on_infeasible && !feasible {
         std::process::exit(1);
     }
@@ -156,12 +159,18 @@ pub fn run(a: RunArgs) -> Result<(), Error> {
 }
 
 /// Runs a mission file into `out`; returns whether every season was feasible.
-pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, Error> {
+pub fn run_mission(
+    mission: &Path,
+    out: &Path,
+    only: &[String],
+    quiet: bool,
+) -> Result<bool, Error> {
     let a = RunArgs {
         mission: mission.to_path_buf(),
         out: out.to_path_buf(),
         season: only.to_vec(),
         fail_on_infeasible: false,
+        quiet,
     };
     let m = load_mission(&a.mission)?;
     std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
@@ -188,13 +197,18 @@ pub fn run_mission(mission: &Path, out: &Path, only: &[String]) -> Result<bool, 
         objective: m.route.objective,
     };
     let route = plan_route(&planner, &route_points(&m))?;
-    eprintln!(
-        "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
-        route.summary.length_m,
-        sunward::units::j_to_wh(route.summary.energy_j),
-        route.summary.duration_s / 3600.0
-    );
-    let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
+    if !a.quiet {
+        eprintln!(
+            "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
+            route.summary.length_m,
+            sunward::units::j_to_wh(route.summary.energy_j),
+            route.summary.duration_s / 3600.0
+        );
+    }
+    let silent = sunward::progress::Silent;
+    let bar = Bar::new();
+    let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
+    let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, progress)?;
     let stops = site_stops(&m, &planner, &route);
     let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season)?;
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
