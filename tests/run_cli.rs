@@ -111,3 +111,61 @@ fn a_broken_mission_lists_its_problems_and_exits_2() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bad.toml:3:"), "{err}");
 }
+
+/// Unordered sites: the runner orders them itself (Held-Karp on the open path from the
+/// last waypoint to the goal), so listing the survey sites in reverse plans the same
+/// route length.
+#[test]
+fn site_order_in_the_file_does_not_matter() {
+    let text = std::fs::read_to_string(mission()).unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let terrain = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("terrains/vardholm_plateau.tif");
+    let text = text.replace(
+        "\"../terrains/vardholm_plateau.tif\"",
+        &format!("{:?}", terrain.display().to_string()),
+    );
+    // Reverse the three [[route.sites]] blocks.
+    let head_end = text.find("[[route.sites]]").unwrap();
+    let tail_start = text.find("[rover]").unwrap();
+    let mut blocks: Vec<&str> = text[head_end..tail_start]
+        .split("[[route.sites]]")
+        .filter(|b| !b.trim().is_empty())
+        .collect();
+    assert_eq!(blocks.len(), 3);
+    blocks.reverse();
+    let reversed = format!(
+        "{}{}{}",
+        &text[..head_end],
+        blocks
+            .iter()
+            .map(|b| format!("[[route.sites]]{b}"))
+            .collect::<String>(),
+        &text[tail_start..]
+    );
+    let length = |body: &str, name: &str| -> f64 {
+        let path = dir.path().join(name);
+        std::fs::write(&path, body).unwrap();
+        let out = dir.path().join(format!("{name}.out"));
+        let run = Command::cargo_bin("sunward")
+            .unwrap()
+            .arg("run")
+            .arg(&path)
+            .arg("--out")
+            .arg(&out)
+            .arg("-q")
+            .output()
+            .unwrap();
+        assert!(
+            run.status.success(),
+            "{}",
+            String::from_utf8_lossy(&run.stderr)
+        );
+        let v: Value =
+            serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap())
+                .unwrap();
+        v["inputs"]["route_length_m"].as_f64().unwrap()
+    };
+    let a = length(&text, "given.toml");
+    let b = length(&reversed, "reversed.toml");
+    assert!((a - b).abs() < 1e-6, "{a} vs {b}");
+}

@@ -13,7 +13,7 @@ use sunward::mission::runner::{run_seasons, SeasonResult};
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
-use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
+use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint, Workspace};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
@@ -87,13 +87,70 @@ fn flags_for(m: &Mission, dem: &Dem) -> Result<CellFlags, Error> {
     Ok(flags)
 }
 
-/// The route: start, waypoints, the sites in the file's order, goal.
-fn route_points(m: &Mission) -> Vec<RoutePoint> {
+/// The route: start, waypoints, the sites in visiting order, goal.
+fn route_points(m: &Mission, order: &[usize]) -> Vec<RoutePoint> {
     let mut pts = vec![m.route.start.point.clone()];
     pts.extend(m.route.waypoints.iter().map(|w| w.point.clone()));
-    pts.extend(m.route.sites.iter().map(|s| s.place.point.clone()));
+    pts.extend(order.iter().map(|&i| m.route.sites[i].place.point.clone()));
     pts.push(m.route.goal.point.clone());
     pts
+}
+
+/// The cheapest order of the unordered sites on the open path from the last waypoint
+/// (or the start) to the goal: pairwise route costs, then `plan::sites` on a matrix whose
+/// "return to base" legs are the legs to the goal, so the optimal tour is the optimal
+/// open path (Held-Karp, exact, up to 10 sites).
+fn site_order<M: sunward::plan::StepModel + ?Sized>(
+    m: &Mission,
+    planner: &Planner<'_, M>,
+) -> Result<Vec<usize>, Error> {
+    use sunward::plan::sites::{graph_from_matrix, order_sites, OrderOptions};
+    let n = m.route.sites.len();
+    if n <= 1 {
+        return Ok((0..n).collect());
+    }
+    let anchor = m
+        .route
+        .waypoints
+        .last()
+        .unwrap_or(&m.route.start)
+        .point
+        .clone();
+    let mut nodes = vec![anchor];
+    nodes.extend(m.route.sites.iter().map(|s| s.place.point.clone()));
+    let cells: Vec<usize> = nodes
+        .iter()
+        .map(|p| locate(planner, p))
+        .collect::<Result<_, _>>()?;
+    let goal = locate(planner, &m.route.goal.point)?;
+    let mut ws = Workspace::default();
+    let mut cost = |a: usize, b: usize| {
+        planner
+            .search(a, b, &mut ws)
+            .map_or(f64::INFINITY, |p| p.cost)
+    };
+    let mut costs = vec![vec![f64::INFINITY; n + 1]; n + 1];
+    for i in 0..=n {
+        for j in 1..=n {
+            if i != j {
+                costs[i][j] = cost(cells[i], cells[j]);
+            }
+        }
+        if i > 0 {
+            costs[i][0] = cost(cells[i], goal);
+        }
+    }
+    let names: Vec<String> = std::iter::once("the leg's start".to_string())
+        .chain(m.route.sites.iter().map(|s| s.place.point.label.clone()))
+        .collect();
+    let tour = order_sites(
+        &graph_from_matrix(&costs, Some(&names))?,
+        &OrderOptions::default(),
+    )?;
+    Ok(tour.order[1..tour.order.len() - 1]
+        .iter()
+        .map(|&i| i - 1)
+        .collect())
 }
 
 /// The payload stops: the profile row where the route reaches each site, walking the
@@ -102,11 +159,12 @@ fn site_stops<M: sunward::plan::StepModel + ?Sized>(
     m: &Mission,
     planner: &Planner<'_, M>,
     route: &Route,
+    order: &[usize],
 ) -> Vec<Stop> {
     let w = planner.dem.width();
     let mut from = 0;
     let mut stops = Vec::new();
-    let points = route_points(m);
+    let points = route_points(m, order);
     let first_site = 1 + m.route.waypoints.len();
     for (i, p) in points.iter().enumerate().skip(1) {
         let Ok(cell) = locate(planner, p) else {
@@ -122,7 +180,7 @@ fn site_stops<M: sunward::plan::StepModel + ?Sized>(
         if i >= first_site && i < first_site + m.route.sites.len() {
             stops.push(Stop {
                 row: from,
-                duration_s: m.route.sites[i - first_site].payload_s,
+                duration_s: m.route.sites[order[i - first_site]].payload_s,
             });
         }
     }
@@ -196,7 +254,8 @@ pub fn run_mission(
         connectivity: m.route.connectivity,
         objective: m.route.objective,
     };
-    let route = plan_route(&planner, &route_points(&m))?;
+    let order = site_order(&m, &planner)?;
+    let route = plan_route(&planner, &route_points(&m, &order))?;
     if !a.quiet {
         eprintln!(
             "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
@@ -209,7 +268,7 @@ pub fn run_mission(
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
     let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, progress)?;
-    let stops = site_stops(&m, &planner, &route);
+    let stops = site_stops(&m, &planner, &route, &order);
     let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season)?;
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
