@@ -64,6 +64,7 @@ fn main() {
             sky_model: m.weather.sky_model,
             albedo: m.weather.albedo,
             wind_m_s: m.weather.wind_m_s,
+            clearness_monthly: [1.0; 12],
         },
         horizon: Some(&horizons),
         ambient: &ambient,

@@ -122,6 +122,7 @@ fn setup<'a>(
             sky_model: SkyModel::HayDavies,
             albedo: 0.2,
             wind_m_s: 1.0,
+            clearness_monthly: [1.0; 12],
         },
         horizon: None,
         ambient: &s.ambient,
@@ -573,4 +574,31 @@ fn payload_stop_runs_the_site_load_and_delays_arrival() {
     let delay = (stopped.arrival.unwrap() - plain.arrival.unwrap()).num_seconds();
     assert!((3600..=3660).contains(&delay), "delay {delay} s");
     assert!((stopped.ledger.drive_wh - plain.ledger.drive_wh).abs() < 1e-9);
+}
+
+/// A monthly clearness factor scales every irradiance component, so with a linear panel
+/// (no temperature coefficient) a factor of 0.5 halves the day's generation.
+#[test]
+fn monthly_clearness_scales_generation() {
+    let dem = flat(5);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (5.0, -5.0), (5.0, -5.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(45f64.to_radians(), 7f64.to_radians(), 300.0).unwrap();
+    let mut set = setup(&route, &rover, &s, &panel, obs, 3.0, parked_day(), 0.5);
+    let clear = simulate(&set, midnight("2031-06-21"))
+        .unwrap()
+        .ledger
+        .generated_wh;
+    set.sky.clearness_monthly = [0.5; 12];
+    let half = simulate(&set, midnight("2031-06-21"))
+        .unwrap()
+        .ledger
+        .generated_wh;
+    assert!(clear > 1000.0);
+    assert!(
+        (half - 0.5 * clear).abs() < 1e-9 * clear,
+        "{half} vs {clear}"
+    );
 }

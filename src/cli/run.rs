@@ -287,8 +287,9 @@ fn simulate_seasons(
     let pack = Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?;
     let thermal = ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?;
     let ambient = Ambient::Monthly(m.weather.climate.clone());
-    let linke = match &m.weather.sky {
-        Sky::ClearSky(l) | Sky::Clearness { linke: l, .. } => *l,
+    let (linke, clearness_monthly) = match &m.weather.sky {
+        Sky::ClearSky(l) => (*l, [1.0; 12]),
+        Sky::Clearness { linke, monthly } => (*linke, *monthly),
         Sky::Csv { .. } => unreachable!("refused before"),
     };
     let observer = Observer::new(
@@ -319,6 +320,7 @@ fn simulate_seasons(
             sky_model: m.weather.sky_model,
             albedo: m.weather.albedo,
             wind_m_s: m.weather.wind_m_s,
+            clearness_monthly,
         },
         horizon: Some(horizons),
         ambient: &ambient,

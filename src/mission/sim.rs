@@ -11,7 +11,9 @@
 //! 2. **Drive** along the route profile at the vehicle model's speed: the drive energy of
 //!    each route step (its battery energy minus the hotel energy of its driving time) is
 //!    spread over its driving time; partial steps are prorated.
-//! 3. **Sun**: SPA position at the middle of the step, Ineichen-Perez clear sky,
+//! 3. **Sun**: SPA position at the middle of the step, Ineichen-Perez clear sky (scaled
+//!    by a monthly clearness factor when the mission gives one: every component alike,
+//!    a simple scaling that keeps the clear sky's beam/diffuse split),
 //!    transposition onto the panel plane of the mount at the body attitude of the current
 //!    route step (body-mounted panels follow pitch, roll and heading), terrain shading of
 //!    the current cell from the horizon map, PV power at the cell temperature.
@@ -113,6 +115,9 @@ pub struct SkySetup {
     pub albedo: f64,
     /// Wind speed for the cell-temperature model, m/s.
     pub wind_m_s: f64,
+    /// Monthly factor on the clear-sky irradiance, January..December (1 = clear sky;
+    /// a monthly clearness relative to clear sky, e.g. measured / clear-sky daily GHI).
+    pub clearness_monthly: [f64; 12],
 }
 
 /// A payload stop: when the rover reaches profile row `row`, it parks there for
@@ -282,6 +287,14 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
             setup.electronics_heat_share,
             "a fraction from 0 to 1",
         ));
+    }
+    if setup
+        .sky
+        .clearness_monthly
+        .iter()
+        .any(|k| !(0.0..=1.2).contains(k))
+    {
+        return Err(bad("clearness_monthly", f64::NAN, "factors from 0 to 1.2"));
     }
     if !(0.0..=1.0).contains(&setup.initial_soc) {
         return Err(bad(
@@ -649,6 +662,12 @@ fn poa(
         azimuth_rad: sun.azimuth_rad,
         dni_extra_w_m2: e0,
         airmass_relative: Some(am),
+    };
+    let k = sky.clearness_monthly[t.month0() as usize];
+    let irr = crate::sun::irradiance::Components {
+        ghi_w_m2: irr.ghi_w_m2 * k,
+        dni_w_m2: irr.dni_w_m2 * k,
+        dhi_w_m2: irr.dhi_w_m2 * k,
     };
     let mut p = plane_of_array(&plane, &geom, &irr, sky.albedo, sky.sky_model);
     if let Some(shade) = setup.horizon.and_then(|h| SiteShade::new(h, col, row)) {
