@@ -577,7 +577,8 @@ fn payload_stop_runs_the_site_load_and_delays_arrival() {
 }
 
 /// A monthly clearness factor scales every irradiance component, so with a linear panel
-/// (no temperature coefficient) a factor of 0.5 halves the day's generation.
+/// (no temperature coefficient) and the isotropic sky (Hay-Davies' anisotropy index
+/// depends on DNI itself) a factor of 0.5 halves the day's generation.
 #[test]
 fn monthly_clearness_scales_generation() {
     let dem = flat(5);
@@ -587,6 +588,7 @@ fn monthly_clearness_scales_generation() {
     let panel = ideal_panel(1.0);
     let obs = Observer::new(45f64.to_radians(), 7f64.to_radians(), 300.0).unwrap();
     let mut set = setup(&route, &rover, &s, &panel, obs, 3.0, parked_day(), 0.5);
+    set.sky.sky_model = SkyModel::Isotropic;
     let clear = simulate(&set, midnight("2031-06-21"))
         .unwrap()
         .ledger
