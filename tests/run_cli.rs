@@ -169,3 +169,47 @@ fn site_order_in_the_file_does_not_matter() {
     let b = length(&reversed, "reversed.toml");
     assert!((a - b).abs() < 1e-6, "{a} vs {b}");
 }
+
+/// A route the rover cannot drive (climb and descent limits of 1° on rolling terrain)
+/// gives a verdict, not a crash: every season infeasible, stranded at the start by the
+/// tilt limits, with the planner's explanation.
+#[test]
+fn an_unplannable_route_is_infeasible_for_tilt() {
+    let terrain = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("terrains/vardholm_plateau.tif");
+    let text = std::fs::read_to_string(mission())
+        .unwrap()
+        .replace(
+            "\"../terrains/vardholm_plateau.tif\"",
+            &format!("{:?}", terrain.display().to_string()),
+        )
+        .replace("max_climb_deg = 18.0", "max_climb_deg = 1.0")
+        .replace("max_descent_deg = 18.0", "max_descent_deg = 1.0");
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("steep.toml");
+    std::fs::write(&path, text).unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(&path)
+        .arg("--out")
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.path().join("summary.json")).unwrap())
+            .unwrap();
+    assert_eq!(v["feasible"], false);
+    for s in v["seasons"].as_array().unwrap() {
+        assert_eq!(s["stranded"]["cause"], "tilt");
+        assert!(
+            s["reason"].as_str().unwrap().contains("the tilt limits"),
+            "{}",
+            s["reason"]
+        );
+    }
+}

@@ -99,7 +99,7 @@ fn route_points(m: &Mission, order: &[usize]) -> Vec<RoutePoint> {
 /// The cheapest order of the unordered sites on the open path from the last waypoint
 /// (or the start) to the goal: pairwise route costs, then `plan::sites` on a matrix whose
 /// "return to base" legs are the legs to the goal, so the optimal tour is the optimal
-/// open path (Held-Karp, exact, up to 10 sites).
+/// open path (Held-Karp, exact, up to 10 sites). Without any complete order, the file's. Without any complete order, the file's.
 fn site_order<M: sunward::plan::StepModel + ?Sized>(
     m: &Mission,
     planner: &Planner<'_, M>,
@@ -143,14 +143,17 @@ fn site_order<M: sunward::plan::StepModel + ?Sized>(
     let names: Vec<String> = std::iter::once("the leg's start".to_string())
         .chain(m.route.sites.iter().map(|s| s.place.point.label.clone()))
         .collect();
-    let tour = order_sites(
-        &graph_from_matrix(&costs, Some(&names))?,
-        &OrderOptions::default(),
-    )?;
-    Ok(tour.order[1..tour.order.len() - 1]
-        .iter()
-        .map(|&i| i - 1)
-        .collect())
+    // When some leg cannot be driven no order exists; keep the file's order and let the
+    // route planner explain which limit closes the way.
+    let tour = graph_from_matrix(&costs, Some(&names))
+        .and_then(|g| order_sites(&g, &OrderOptions::default()));
+    Ok(match tour {
+        Ok(t) => t.order[1..t.order.len() - 1]
+            .iter()
+            .map(|&i| i - 1)
+            .collect(),
+        Err(_) => (0..n).collect(),
+    })
 }
 
 /// The payload stops: the profile row where the route reaches each site, walking the
@@ -255,7 +258,13 @@ pub fn run_mission(
         objective: m.route.objective,
     };
     let order = site_order(&m, &planner)?;
-    let route = plan_route(&planner, &route_points(&m, &order))?;
+    let route = match plan_route(&planner, &route_points(&m, &order)) {
+        Ok(r) => r,
+        Err(e @ sunward::plan::PlanError::Unreachable { .. }) => {
+            return unplannable(&a, &m, &e);
+        }
+        Err(e) => return Err(e.into()),
+    };
     if !a.quiet {
         eprintln!(
             "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
@@ -359,6 +368,76 @@ fn slug(name: &str) -> String {
             }
         })
         .collect()
+}
+
+/// The route cannot be planned: every season is infeasible, stranded at its start by
+/// the limit that closes the way (`tilt` for pitch and roll, `traction` for traction and
+/// sinkage, `terrain` for keep-out, no-data, roughness or the grid edge). Writes
+/// summary.json only.
+fn unplannable(a: &RunArgs, m: &Mission, e: &sunward::plan::PlanError) -> Result<bool, Error> {
+    use sunward::mission::ledger::Ledger;
+    use sunward::mission::runner::local_midnight;
+    use sunward::mission::sim::{Run, Stranded};
+    use sunward::mission::verdict::summarize;
+    use sunward::plan::Blocked;
+    let sunward::plan::PlanError::Unreachable {
+        detail, nearest_xy, ..
+    } = e
+    else {
+        unreachable!("called for unreachable routes only")
+    };
+    let cause = match detail.closed_by.first().map(|c| c.0) {
+        Some(Blocked::PitchUp | Blocked::PitchDown | Blocked::Roll) => "tilt",
+        Some(Blocked::Traction | Blocked::Sinkage) => "traction",
+        _ => "terrain",
+    };
+    let offset = i64::from(m.site.utc_offset.local_minus_utc());
+    let results: Vec<SeasonResult> = m
+        .seasons
+        .iter()
+        .filter(|s| a.season.is_empty() || a.season.iter().any(|o| s.name.contains(o.as_str())))
+        .map(|season| {
+            let start = local_midnight(season.date, offset);
+            let run = Run {
+                samples: Vec::new(),
+                ledger: Ledger::default(),
+                arrival: None,
+                stranded: Some(Stranded {
+                    time: start,
+                    x: nearest_xy.0,
+                    y: nearest_xy.1,
+                    cause,
+                    detail: e.to_string(),
+                }),
+                min_soc: (1.0, start),
+                hours_below_reserve: 0.0,
+                storage_breach: None,
+                distance_m: 0.0,
+                in_hours_s: 0.0,
+                charging_hold_s: 0.0,
+            };
+            let summary = summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);
+            SeasonResult {
+                season: season.clone(),
+                run,
+                summary,
+                days: Vec::new(),
+            }
+        })
+        .collect();
+    let inputs = serde_json::json!({"route": "not plannable", "reason": e.to_string()});
+    let doc = summary(&m.site.name, &results, inputs);
+    let text = summary_json(&doc);
+    write_atomic(&a.out.join("summary.json"), |w| {
+        w.write_all(text.as_bytes())
+    })?;
+    crate::say!(
+        "{}: the route cannot be planned, so no season is feasible.",
+        m.site.name
+    );
+    crate::say!("  {e}");
+    crate::say!("summary.json written to {}", a.out.display());
+    Ok(false)
 }
 
 /// The page's fixed text: the route and the assumptions with their sources.

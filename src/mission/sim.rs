@@ -178,7 +178,8 @@ pub struct Stranded {
     pub x: f64,
     /// Map y of the rover.
     pub y: f64,
-    /// `light` or `heat` (the pack's temperature or the heater's draw).
+    /// `light` or `heat` (the pack's temperature or the heater's draw) from the
+    /// simulation; `tilt`, `traction` or `terrain` when the route cannot be planned.
     pub cause: &'static str,
     /// What happened, in words.
     pub detail: String,

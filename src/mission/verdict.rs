@@ -92,10 +92,12 @@ pub fn summarize(
             s.time.format("%Y-%m-%d %H:%M UTC"),
             s.x,
             s.y,
-            if s.cause == "heat" {
-                "temperature"
-            } else {
-                "lack of light"
+            match s.cause {
+                "heat" => "temperature",
+                "light" => "lack of light",
+                "tilt" => "the tilt limits",
+                "traction" => "the traction limit",
+                _ => "the terrain",
             },
             s.detail
         ),
