@@ -9,7 +9,7 @@ use sunward::battery::ambient::Ambient;
 use sunward::battery::pack::Pack;
 use sunward::battery::thermal::ThermalNode;
 use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
-use sunward::mission::runner::{run_seasons, SeasonResult};
+use sunward::mission::runner::{run_seasons_with, SeasonResult};
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
@@ -278,7 +278,7 @@ pub fn run_mission(
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
     let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, progress)?;
     let stops = site_stops(&m, &planner, &route, &order);
-    let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season)?;
+    let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season, progress)?;
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
     print_verdicts(&m, &results, &a.out);
@@ -291,6 +291,7 @@ fn simulate_seasons(
     stops: &[Stop],
     horizons: &horizon::HorizonMap,
     only: &[String],
+    progress: &dyn sunward::progress::Progress,
 ) -> Result<Vec<SeasonResult>, Error> {
     let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
     let pack = Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?;
@@ -355,7 +356,7 @@ fn simulate_seasons(
                 .join(", ")
         )));
     }
-    run_seasons(&setup, &seasons).map_err(|e| stage(e.to_string()))
+    run_seasons_with(&setup, &seasons, progress).map_err(|e| stage(e.to_string()))
 }
 
 fn slug(name: &str) -> String {

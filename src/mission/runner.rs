@@ -42,24 +42,31 @@ pub fn run_seasons(
     setup: &SimSetup<'_>,
     seasons: &[Season],
 ) -> Result<Vec<SeasonResult>, SimError> {
+    run_seasons_with(setup, seasons, &crate::progress::Silent)
+}
+
+/// [`run_seasons`], reporting each finished season to `progress`.
+pub fn run_seasons_with(
+    setup: &SimSetup<'_>,
+    seasons: &[Season],
+    progress: &dyn crate::progress::Progress,
+) -> Result<Vec<SeasonResult>, SimError> {
     let reserve = setup.pack.params().reserve_soc;
-    seasons
+    let done = std::sync::atomic::AtomicU64::new(0);
+    progress.start("seasons", seasons.len() as u64);
+    let out = seasons
         .par_iter()
         .map(|season| {
             let run = simulate(setup, local_midnight(season.date, setup.utc_offset_s))?;
-            let summary = summarize(
-                &season.name,
-                season.date,
-                &run,
-                reserve,
-                setup.route.summary.length_m,
-            );
+            let length = setup.route.summary.length_m;
+            let summary = summarize(&season.name, season.date, &run, reserve, length);
             let days = daily_budgets(
                 &run.samples,
                 setup.step_s,
                 setup.utc_offset_s,
                 setup.initial_soc,
             );
+            progress.update(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
             Ok(SeasonResult {
                 season: season.clone(),
                 run,
@@ -67,5 +74,7 @@ pub fn run_seasons(
                 days,
             })
         })
-        .collect()
+        .collect();
+    progress.finish();
+    out
 }
