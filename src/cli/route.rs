@@ -9,8 +9,7 @@ use serde_json::{json, Value};
 use sunward::plan::sites::Tour;
 use sunward::plan::smooth::Smoothed;
 use sunward::plan::{
-    plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint,
-    TiltLimits, Workspace,
+    plan_route, Blocked, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
 };
 use sunward::report::atomic::write_atomic;
 use sunward::terrain::{roughness, Dem};
@@ -339,18 +338,7 @@ fn order_tour<M: sunward::plan::StepModel + ?Sized>(
         .iter()
         .map(|p| locate(planner, p))
         .collect::<Result<_, _>>()?;
-    let mut ws = Workspace::default();
-    let n = cells.len();
-    let mut costs = vec![vec![f64::INFINITY; n]; n];
-    for i in 0..n {
-        for j in 0..n {
-            if i != j {
-                if let Ok(p) = planner.search(cells[i], cells[j], &mut ws) {
-                    costs[i][j] = p.cost;
-                }
-            }
-        }
-    }
+    let costs = sunward::plan::route::leg_costs(planner, &cells, &cells);
     let names: Vec<String> = nodes.iter().map(|p| p.label.clone()).collect();
     let graph = graph_from_matrix(&costs, Some(&names))?;
     let tour = order_sites(&graph, &OrderOptions::default())?;

@@ -12,8 +12,8 @@ use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
 use sunward::mission::runner::{run_seasons_with, SeasonResult};
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
-use sunward::plan::route::locate;
-use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint, Workspace};
+use sunward::plan::route::{leg_costs, locate};
+use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
@@ -122,24 +122,10 @@ fn site_order<M: sunward::plan::StepModel + ?Sized>(
         .iter()
         .map(|p| locate(planner, p))
         .collect::<Result<_, _>>()?;
-    let goal = locate(planner, &m.route.goal.point)?;
-    let mut ws = Workspace::default();
-    let mut cost = |a: usize, b: usize| {
-        planner
-            .search(a, b, &mut ws)
-            .map_or(f64::INFINITY, |p| p.cost)
-    };
-    let mut costs = vec![vec![f64::INFINITY; n + 1]; n + 1];
-    for i in 0..=n {
-        for j in 1..=n {
-            if i != j {
-                costs[i][j] = cost(cells[i], cells[j]);
-            }
-        }
-        if i > 0 {
-            costs[i][0] = cost(cells[i], goal);
-        }
-    }
+    // Column 0 is the goal instead of the leg's start: the tour's return leg.
+    let mut targets = cells.clone();
+    targets[0] = locate(planner, &m.route.goal.point)?;
+    let costs = leg_costs(planner, &cells, &targets);
     let names: Vec<String> = std::iter::once("the leg's start".to_string())
         .chain(m.route.sites.iter().map(|s| s.place.point.label.clone()))
         .collect();

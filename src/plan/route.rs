@@ -118,6 +118,33 @@ pub fn locate<M: StepModel + ?Sized>(
     Ok(cell)
 }
 
+/// Route costs between cells, one search each: `costs[i][j]` is the optimal cost (in the
+/// objective's units) from `from[i]` to `to[j]`, +∞ where no drivable route exists and on
+/// the diagonal i == j (the leg matrices of `plan::sites`).
+pub fn leg_costs<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    from: &[usize],
+    to: &[usize],
+) -> Vec<Vec<f64>> {
+    let mut ws = Workspace::default();
+    from.iter()
+        .enumerate()
+        .map(|(i, &a)| {
+            to.iter()
+                .enumerate()
+                .map(|(j, &b)| {
+                    if i == j {
+                        return f64::INFINITY;
+                    }
+                    planner
+                        .search(a, b, &mut ws)
+                        .map_or(f64::INFINITY, |p| p.cost)
+                })
+                .collect()
+        })
+        .collect()
+}
+
 /// Plans through `points` in order (at least two: start and goal).
 pub fn plan_route<M: StepModel + ?Sized>(
     planner: &Planner<'_, M>,
