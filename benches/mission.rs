@@ -79,6 +79,7 @@ fn main() {
         },
         step_s: 10.0,
         stops: Vec::new(),
+        holds: Vec::new(),
     };
     let t = Instant::now();
     let results = run_seasons(&setup, &m.seasons).unwrap();

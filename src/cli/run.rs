@@ -324,6 +324,7 @@ fn simulate_seasons(
         policy: policy(m),
         step_s: m.step_s,
         stops: stops.to_vec(),
+        holds: Vec::new(),
     };
     let seasons: Vec<_> = m
         .seasons

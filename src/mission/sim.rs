@@ -33,6 +33,12 @@
 //! scheduled `at_site` run, the site clock counts even outside the driving hours), then
 //! drives on.
 //!
+//! Holds (a schedule, as the sun-aware planner makes): on reaching the row of a [`Hold`]
+//! the rover stops and stays there until the hold's time, parked inside the driving
+//! hours and asleep outside them (as the policy's sleep rule says); while it holds, its
+//! panels keep the attitude of the step it arrived on (without holds the parked rover
+//! takes the attitude of the step it is about to drive). With no holds nothing changes.
+//!
 //! # Limits
 //! Clear-sky irradiance only (an upper bound of real skies); acceleration and turning
 //! energy are left out; the rover's state inside a step is taken as constant.
@@ -130,6 +136,16 @@ pub struct Stop {
     pub duration_s: f64,
 }
 
+/// A scheduled hold: on reaching profile row `row` the rover stays there until `until_s`
+/// seconds after the start (a multiple of the step length, so it ends on a step).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Hold {
+    /// Index of the route profile row where the rover waits.
+    pub row: usize,
+    /// End of the hold, seconds after the start.
+    pub until_s: f64,
+}
+
 /// Everything one run needs; the stages' own checked types.
 #[derive(Debug, Clone)]
 pub struct SimSetup<'a> {
@@ -167,6 +183,8 @@ pub struct SimSetup<'a> {
     pub step_s: f64,
     /// Payload stops along the route, in route order.
     pub stops: Vec<Stop>,
+    /// Scheduled holds, in route order with increasing rows (empty: the policy alone).
+    pub holds: Vec<Hold>,
 }
 
 /// Why a run stopped short.
@@ -368,6 +386,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
     // The next stop to make, and the seconds already spent at the current one.
     let (mut next_stop, mut at_site_s): (usize, Option<f64>) = (0, None);
     let mut day_window: std::collections::VecDeque<(f64, f64)> = Default::default();
+    // The next scheduled hold still to finish.
+    let mut next_hold = 0;
     let steps = (setup.policy.deadline_s / dt).ceil() as usize;
     for k in 0..steps {
         if run.arrival.is_some() && setup.policy.end == EndCondition::Arrival {
@@ -395,7 +415,22 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             }
         }
         let at_site = at_site_s.is_some();
-        let activity = if !in_hours && setup.policy.sleep_outside_hours && !at_site {
+        let elapsed_s = k as f64 * dt;
+        while setup.holds.get(next_hold).is_some_and(|h| {
+            h.row + 1 == prog.next && prog.into_step_s == 0.0 && elapsed_s >= h.until_s
+        }) {
+            next_hold += 1;
+        }
+        let holding = setup.holds.get(next_hold).is_some_and(|h| {
+            h.row + 1 == prog.next && prog.into_step_s == 0.0 && elapsed_s < h.until_s
+        });
+        let activity = if holding {
+            if !in_hours && setup.policy.sleep_outside_hours {
+                Activity::Asleep
+            } else {
+                Activity::Parked
+            }
+        } else if !in_hours && setup.policy.sleep_outside_hours && !at_site {
             Activity::Asleep
         } else if !in_hours || arrived || charge_hold || at_site {
             Activity::Parked
@@ -413,6 +448,10 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         }
         // Drive.
         let stop_row = setup.stops.get(next_stop).map_or(usize::MAX, |s| s.row);
+        let stop_row = setup
+            .holds
+            .get(next_hold)
+            .map_or(stop_row, |h| stop_row.min(h.row));
         let (drive_j, drive_s) = if activity == Activity::Driving {
             drive(setup, &mut prog, dt, &mut run.distance_m, stop_row)
         } else {
@@ -425,6 +464,14 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         // whose attitude it has.
         let here = &profile[(prog.next - 1).min(profile.len() - 1)];
         let heading_row = &profile[prog.next.min(profile.len() - 1)];
+        // Holding at the end of this step: the rover keeps the attitude it arrived with.
+        let end_s = (k + 1) as f64 * dt;
+        let heading_row = match setup.holds.get(next_hold) {
+            Some(h) if h.row + 1 == prog.next && prog.into_step_s == 0.0 && end_s < h.until_s => {
+                here
+            }
+            _ => heading_row,
+        };
         // Sun and panels.
         let air_c = setup.ambient.temp_c(mid, setup.utc_offset_s);
         let att = Attitude {
@@ -639,9 +686,27 @@ fn poa(
     row: usize,
     t: DateTime<Utc>,
 ) -> f64 {
-    let Some(am) = relative_airmass(sun.apparent_zenith_rad) else {
-        return 0.0;
-    };
+    match sky_now(setup, sun, t) {
+        Some(sky) => poa_on(setup, &sky, att, col, row),
+        None => 0.0,
+    }
+}
+
+/// The part of the plane-of-array irradiance that depends on the instant alone.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct SkyNow {
+    sun: crate::sun::position::SunPosition,
+    geom: SunGeometry,
+    irr: crate::sun::irradiance::Components,
+}
+
+/// The sky at `t` with the sun at `sun` (None: the sun is down, no light).
+pub(crate) fn sky_now(
+    setup: &SimSetup<'_>,
+    sun: &crate::sun::position::SunPosition,
+    t: DateTime<Utc>,
+) -> Option<SkyNow> {
+    let am = relative_airmass(sun.apparent_zenith_rad)?;
     let e0 = extraterrestrial_w_m2(sun.earth_sun_distance_au);
     use chrono::Datelike;
     let sky = &setup.sky;
@@ -652,12 +717,6 @@ fn poa(
         sky.observer.elevation_m,
         e0,
     );
-    let Some(plane) = setup
-        .mount
-        .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad)
-    else {
-        return 0.0;
-    };
     let geom = SunGeometry {
         zenith_rad: sun.apparent_zenith_rad,
         azimuth_rad: sun.azimuth_rad,
@@ -670,19 +729,43 @@ fn poa(
         dni_w_m2: irr.dni_w_m2 * k,
         dhi_w_m2: irr.dhi_w_m2 * k,
     };
-    let mut p = plane_of_array(&plane, &geom, &irr, sky.albedo, sky.sky_model);
+    Some(SkyNow {
+        sun: *sun,
+        geom,
+        irr,
+    })
+}
+
+/// Plane-of-array irradiance under `sky` on panels at attitude `att` in cell (col, row),
+/// with the terrain's shading, W/m².
+pub(crate) fn poa_on(
+    setup: &SimSetup<'_>,
+    sky: &SkyNow,
+    att: &Attitude,
+    col: usize,
+    row: usize,
+) -> f64 {
+    let sun = &sky.sun;
+    let Some(plane) = setup
+        .mount
+        .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad)
+    else {
+        return 0.0;
+    };
+    let s = &setup.sky;
+    let mut p = plane_of_array(&plane, &sky.geom, &sky.irr, s.albedo, s.sky_model);
     if let Some(shade) = setup.horizon.and_then(|h| SiteShade::new(h, col, row)) {
         p = shade.apply(p, sun.apparent_elevation_rad(), sun.azimuth_rad);
     }
     p.total_w_m2()
 }
 
-fn local_seconds(t: DateTime<Utc>, offset_s: i64) -> f64 {
+pub(crate) fn local_seconds(t: DateTime<Utc>, offset_s: i64) -> f64 {
     let local = t + Duration::seconds(offset_s);
     f64::from(local.num_seconds_from_midnight()) + f64::from(local.nanosecond()) * 1e-9
 }
 
-fn in_window(hour: f64, start_h: f64, end_h: f64) -> bool {
+pub(crate) fn in_window(hour: f64, start_h: f64, end_h: f64) -> bool {
     if start_h <= end_h {
         (start_h..end_h).contains(&hour)
     } else {
