@@ -21,6 +21,7 @@ pub mod resolve;
 pub mod runner;
 pub mod sim;
 pub mod spec;
+pub mod sunaware;
 pub mod verdict;
 
 use std::path::Path;

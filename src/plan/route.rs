@@ -178,6 +178,32 @@ pub fn plan_route<M: StepModel + ?Sized>(
     Ok(profile(planner, &path, expanded, cost))
 }
 
+/// The route along `cells`, consecutive 8-neighbours from start to goal, with its
+/// profile and summary evaluated as [`plan_route`] evaluates its own (the objective's
+/// cost summed over the steps; `expanded` is the caller's search count). Every step must
+/// be drivable: the caller has checked each with [`Planner::geometry`] and the model.
+pub fn route_along<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    cells: &[usize],
+    expanded: u64,
+) -> Route {
+    let mut r = profile(planner, cells, expanded, 0.0);
+    let o = planner.objective;
+    r.summary.cost = r
+        .profile
+        .windows(2)
+        .map(|p| {
+            let length = p[1].distance_m - p[0].distance_m;
+            let e = crate::plan::cost::StepEnergy {
+                energy_j: p[1].step_energy_j,
+                time_s: p[1].step_time_s,
+            };
+            o.cost(length, &e)
+        })
+        .sum();
+    r
+}
+
 fn profile<M: StepModel + ?Sized>(
     p: &Planner<'_, M>,
     cells: &[usize],

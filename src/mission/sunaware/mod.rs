@@ -1,0 +1,888 @@
+//! Sun-aware planning: a route *and* a schedule (where to wait, and until when) that
+//! reaches the goal with the state of charge never below the reserve, found by a
+//! time-dependent search over (place, time) with the state of charge as a resource.
+//!
+//! # Method
+//! A resource-constrained shortest-path search with label dominance (labels and
+//! Pareto pruning as in Irnich and Desaulniers, "Shortest path problems with resource
+//! constraints", in *Column Generation*, Springer 2005, ch. 2; from memory), on a
+//! time-expanded graph in the spirit of sun-synchronous exploration (Wettergreen et al.,
+//! "Sun-synchronous robotic exploration", IJRR 24(1), 2005: plan where the rover is
+//! *when*, so that it stays lit).
+//!
+//! - **States.** A label is a rover at a node of a coarse lattice at a time t (seconds,
+//!   continuous) with the simulation's full energy state: pack state of charge, battery
+//!   box temperature and heater, last step's losses, and the open simulation step.
+//! - **Moves.** Drive to one of the 8 neighbouring lattice nodes along a fixed fine-grid
+//!   path (energy and time from the planner's [`StepModel`], step by step); or wait in
+//!   place until the next bucket boundary (below). The energy of a move is priced by
+//!   the simulation's own step arithmetic (`walker`): panels from the same sun,
+//!   transposition, panel and terrain-shading code, at the cell and body attitude the
+//!   rover has in each simulation step (body-mounted panels follow heading, pitch and
+//!   roll; a waiting rover keeps the attitude it arrived with), hotel and named loads,
+//!   thermal node, heater and pack. A move is refused when a step would end below the
+//!   reserve state of charge, when driving would fall outside the policy's driving
+//!   hours, or past the deadline (the search's time horizon is the policy's deadline).
+//! - **Time buckets.** Time is cut into buckets of `bucket_s` (a whole number of
+//!   simulation steps). A label belongs to bucket ⌊t / bucket_s⌋; a wait lasts from t to
+//!   the next bucket boundary, (⌊t / bucket_s⌋ + 1)·bucket_s, so schedules hold until
+//!   bucket boundaries and a hold always ends on a simulation step.
+//! - **Dominance.** Per (node, bucket) the search keeps the labels that no other label of
+//!   the same node and bucket beats on both arrival time and state of charge: label a
+//!   prunes b when t_a ≤ t_b and SOC_a ≥ SOC_b. Pruning compares these two resources only:
+//!   it ignores the box temperature, the arrival heading (which sets the panels' attitude
+//!   for a later wait) and the drain while a to-be-pruned label would wait from t_a to
+//!   t_b. Within a bucket these differ little; the search is exact up to this rule.
+//! - **Order.** Labels leave a priority queue by t + h, h the vehicle's lower bound of
+//!   the driving time to the goal: with [`SunAwareObjective::EarliestArrival`] the first
+//!   label to reach the goal is the earliest arrival (up to the dominance rule); with
+//!   [`SunAwareObjective::MostCharge`] every label is expanded and the arrival with the
+//!   highest state of charge wins (ties: earlier).
+//!
+//! # The coarse lattice and tilt safety
+//! Lattice nodes are fine cells `block_cells` apart in rows and columns, placed so that
+//! the start is a node; node (i, j) stands for the block of fine cells around it and is
+//! the cell the rover actually visits (cells are *sampled*, not averaged: no elevation is
+//! smoothed). The edge between neighbouring nodes is the straight fine-grid path between
+//! them (`block_cells` fine steps, cardinal or diagonal), and the goal is reached from
+//! any node within `block_cells` fine cells of it by a diagonal-then-straight fine path.
+//! Every fine step of every edge is checked by the fine planner ([`Planner::geometry`]:
+//! cell blocks, flanking cells, uphill, downhill and roll limits on the fine DEM) and
+//! priced by the vehicle model, so a coarse edge is drivable exactly when every fine step
+//! of it is: the coarse grid can never cut a corner the fine grid forbids. It can miss a
+//! passage narrower than a block or not on a straight line between nodes (the price of
+//! the coarse grid); `block_cells = 1` searches the fine grid itself.
+//!
+//! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
+//! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
+//! ordinary [`simulate`](crate::mission::sim::simulate) with
+//! [`Hold`]s reproduces the search's energy (see `tests/mission_sunaware.rs`).
+//!
+//! # Bounds
+//! The time horizon (the policy's deadline) and a label budget (`max_labels`; memory is
+//! about `max_labels` × the label size, reported in [`SearchStats::label_bytes`]). When
+//! no plan exists the error names the bound that bit: the goal unreachable on the
+//! lattice whatever the time (tilt or another cell block), the label budget, labels cut
+//! at the reserve everywhere, or labels that could not arrive before the horizon.
+//!
+//! # Limits
+//! One goal, no payload stops; the replay policy drives whenever the schedule says
+//! (its state-of-charge thresholds are set to zero: the plan itself keeps the reserve).
+//!
+//! # Units
+//! Seconds, watt-hours, fractions (state of charge), metres.
+
+mod walker;
+
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
+use chrono::{DateTime, Utc};
+
+use crate::mission::ledger::Ledger;
+use crate::mission::sim::{EndCondition, Hold, SimError, SimSetup};
+use crate::plan::astar::DIRECTIONS;
+use crate::plan::route::{locate, route_along};
+use crate::plan::{Blocked, PlanError, Planner, Route, RoutePoint, StepModel};
+use crate::sun::panel::Attitude;
+use walker::{Clock, Halt, Pose, Walk, Walker};
+
+/// What the sun-aware search optimises.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum SunAwareObjective {
+    /// Arrive as early as possible.
+    #[default]
+    EarliestArrival,
+    /// Arrive (before the deadline) with the highest state of charge.
+    MostCharge,
+}
+
+/// Search settings.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SunAwareSettings {
+    /// Fine cells between lattice nodes (1..=256; 1 = the fine grid).
+    pub block_cells: usize,
+    /// Bucket length, seconds: a whole number of simulation steps.
+    pub bucket_s: f64,
+    /// Label budget (each label is [`SearchStats::label_bytes`] bytes).
+    pub max_labels: usize,
+    /// What to optimise.
+    pub objective: SunAwareObjective,
+}
+
+impl Default for SunAwareSettings {
+    /// 8-cell blocks, 30-minute buckets (a charging decision every half hour: the sun
+    /// moves 7.5° of azimuth in that time), 4 million labels (a few hundred MB).
+    fn default() -> Self {
+        SunAwareSettings {
+            block_cells: 8,
+            bucket_s: 1800.0,
+            max_labels: 4_000_000,
+            objective: SunAwareObjective::EarliestArrival,
+        }
+    }
+}
+
+/// What the search did.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize)]
+pub struct SearchStats {
+    /// Lattice nodes (the goal not counted).
+    pub nodes: usize,
+    /// Lattice edges whose fine path is blocked, by the first reason met.
+    pub edges_blocked: Vec<(Blocked, u64)>,
+    /// Labels made.
+    pub labels_created: u64,
+    /// Labels taken from the queue and expanded.
+    pub labels_expanded: u64,
+    /// Labels pruned by dominance (refused or removed).
+    pub labels_dominated: u64,
+    /// Moves refused because a step would end below the reserve.
+    pub cut_reserve: u64,
+    /// Moves refused because they could not arrive before the horizon.
+    pub cut_horizon: u64,
+    /// Drives refused because they fell outside the driving hours.
+    pub cut_hours: u64,
+    /// Bytes per label.
+    pub label_bytes: usize,
+    /// Whether the search ran to its end (false: the label budget stopped it).
+    pub complete: bool,
+}
+
+/// A route with a schedule.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SunAwarePlan {
+    /// The route on the fine grid.
+    pub route: Route,
+    /// Where and until when the rover waits.
+    pub holds: Vec<Hold>,
+    /// Arrival, seconds after the start.
+    pub arrival_s: f64,
+    /// State of charge after the step of the arrival.
+    pub final_soc: f64,
+    /// Lowest state of charge at any step end.
+    pub min_soc: f64,
+    /// The plan's energy as the search priced it.
+    pub ledger: Ledger,
+    /// Search counters.
+    pub stats: SearchStats,
+}
+
+impl SunAwarePlan {
+    /// The setup that replays this plan with [`crate::mission::sim::simulate`]:
+    /// `template` with this route and holds, no payload stops, state-of-charge
+    /// thresholds at zero (the plan keeps the reserve) and the run ending at arrival.
+    pub fn replay_setup<'a>(&'a self, template: &SimSetup<'a>) -> SimSetup<'a> {
+        let mut s = template.clone();
+        s.route = &self.route;
+        s.stops = Vec::new();
+        s.holds = self.holds.clone();
+        s.policy.min_soc_to_drive = 0.0;
+        s.policy.resume_soc = 0.0;
+        s.policy.end = EndCondition::Arrival;
+        s
+    }
+}
+
+/// The bound that left the search without a plan.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Bound {
+    /// No lattice path at any time: tilt limits or other cell blocks.
+    Tilt,
+    /// The label budget ran out first.
+    LabelBudget,
+    /// Every way ran below the reserve state of charge.
+    Reserve,
+    /// No way arrives before the horizon (the deadline).
+    Horizon,
+}
+
+/// Why the search gave no plan.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SunAwareError {
+    /// A setting is out of range.
+    #[error("sun-aware setting {name} = {value}: expected {expected}")]
+    Setting {
+        /// The setting.
+        name: &'static str,
+        /// Its value.
+        value: String,
+        /// What is accepted.
+        expected: &'static str,
+    },
+    /// Start or goal could not be placed.
+    #[error(transparent)]
+    Place(#[from] PlanError),
+    /// The simulation setup was refused.
+    #[error(transparent)]
+    Sim(#[from] SimError),
+    /// The search ended without a plan.
+    #[error("no sun-aware plan: {detail}")]
+    NoPlan {
+        /// The bound that bit.
+        bound: Bound,
+        /// What happened, in words, with the fix.
+        detail: String,
+        /// Search counters.
+        stats: Box<SearchStats>,
+    },
+}
+
+/// Plans from `start` to `goal` for a run of `setup` (its route, stops and holds are
+/// ignored) beginning at `t0`. `planner` is the fine-grid planner over the DEM the
+/// horizon map of `setup` was made from.
+pub fn plan_sun_aware<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    setup: &SimSetup<'_>,
+    start: &RoutePoint,
+    goal: &RoutePoint,
+    t0: DateTime<Utc>,
+    settings: &SunAwareSettings,
+) -> Result<SunAwarePlan, SunAwareError> {
+    check_settings(planner, setup, settings)?;
+    let (s_cell, g_cell) = (locate(planner, start)?, locate(planner, goal)?);
+    if s_cell == g_cell {
+        return Err(setting(
+            "goal",
+            format!("{}, {}", goal.x, goal.y),
+            "a goal in another cell than the start",
+        ));
+    }
+    let clock = Clock::new(setup, t0)?;
+    let walker = Walker {
+        setup,
+        clock: &clock,
+        reserve_soc: setup.pack.params().reserve_soc,
+    };
+    let lattice = Lattice::new(planner, settings.block_cells, s_cell, g_cell);
+    let mut search = Search::new(planner, lattice, &walker, settings);
+    search.reachable()?;
+    let found = search.run(walker.start()?)?;
+    search.finish(found)
+}
+
+fn setting(name: &'static str, value: String, expected: &'static str) -> SunAwareError {
+    SunAwareError::Setting {
+        name,
+        value,
+        expected,
+    }
+}
+
+fn check_settings<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    setup: &SimSetup<'_>,
+    s: &SunAwareSettings,
+) -> Result<(), SunAwareError> {
+    if !(1..=256).contains(&s.block_cells) {
+        return Err(setting(
+            "block_cells",
+            s.block_cells.to_string(),
+            "1 to 256 fine cells",
+        ));
+    }
+    let ratio = s.bucket_s / setup.step_s;
+    if !(ratio >= 1.0 && (ratio - ratio.round()).abs() < 1e-9) {
+        return Err(setting(
+            "bucket_s",
+            s.bucket_s.to_string(),
+            "a whole number (at least 1) of simulation steps",
+        ));
+    }
+    if s.max_labels == 0 || s.max_labels > u32::MAX as usize / 2 {
+        return Err(setting(
+            "max_labels",
+            s.max_labels.to_string(),
+            "1 to 2^31 labels",
+        ));
+    }
+    if let Some(h) = setup.horizon {
+        if h.width() != planner.dem.width() || h.height() != planner.dem.height() {
+            return Err(setting(
+                "horizon",
+                format!("{} x {}", h.width(), h.height()),
+                "a horizon map of the planner's DEM (same width and height)",
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The coarse lattice: fine cells `b` apart, aligned on the start.
+#[derive(Debug, Clone, Copy)]
+struct Lattice {
+    b: usize,
+    c0: usize,
+    r0: usize,
+    nc: usize,
+    nr: usize,
+    start_cell: usize,
+    goal_cell: usize,
+    w: usize,
+}
+
+/// Edge slots per node: 8 neighbours, then the goal.
+const SLOTS: usize = 9;
+const GOAL_SLOT: u8 = 8;
+const WAIT: u8 = 9;
+const START: u8 = 10;
+
+impl Lattice {
+    fn new<M: StepModel + ?Sized>(p: &Planner<'_, M>, b: usize, start: usize, goal: usize) -> Self {
+        let (w, h) = (p.dem.width(), p.dem.height());
+        let (c0, r0) = ((start % w) % b, (start / w) % b);
+        Lattice {
+            b,
+            c0,
+            r0,
+            nc: (w - 1 - c0) / b + 1,
+            nr: (h - 1 - r0) / b + 1,
+            start_cell: start,
+            goal_cell: goal,
+            w,
+        }
+    }
+
+    fn nodes(&self) -> usize {
+        self.nc * self.nr
+    }
+
+    /// The goal's node id (one past the lattice).
+    fn goal(&self) -> usize {
+        self.nodes()
+    }
+
+    fn cell(&self, node: usize) -> usize {
+        if node == self.goal() {
+            return self.goal_cell;
+        }
+        let (i, j) = (node % self.nc, node / self.nc);
+        (self.r0 + j * self.b) * self.w + self.c0 + i * self.b
+    }
+
+    fn node_of(&self, cell: usize) -> usize {
+        let (c, r) = (cell % self.w, cell / self.w);
+        (r - self.r0) / self.b * self.nc + (c - self.c0) / self.b
+    }
+
+    /// The node the edge in `slot` leads to, if it is inside the lattice.
+    fn target(&self, node: usize, slot: u8) -> Option<usize> {
+        if slot == GOAL_SLOT {
+            let (a, g) = (self.cell(node), self.goal_cell);
+            let d = ((a % self.w).abs_diff(g % self.w)).max((a / self.w).abs_diff(g / self.w));
+            return (d > 0 && d <= self.b).then_some(self.goal());
+        }
+        let (dc, dr) = DIRECTIONS[slot as usize];
+        let (i, j) = ((node % self.nc) as i64, (node / self.nc) as i64);
+        let (ti, tj) = (i + dc as i64, j + dr as i64);
+        (ti >= 0 && tj >= 0 && (ti as usize) < self.nc && (tj as usize) < self.nr)
+            .then(|| tj as usize * self.nc + ti as usize)
+    }
+}
+
+/// One fine step of an edge.
+#[derive(Debug, Clone, Copy)]
+struct FineStep {
+    /// The cell it starts in and its attitude.
+    pose: Pose,
+    energy_j: f64,
+    time_s: f64,
+    /// The cell it ends in.
+    to: usize,
+}
+
+type Edge = Result<Box<[FineStep]>, Blocked>;
+
+/// A rover at a node at a time with its energy state.
+#[derive(Debug, Clone, Copy)]
+struct Label {
+    walk: Walk,
+    node: u32,
+    parent: u32,
+    /// The edge slot that brought it, [`WAIT`] or [`START`].
+    how: u8,
+    alive: bool,
+    /// Edge index (node · SLOTS + slot) of the last drive (u32::MAX: none yet).
+    in_edge: u32,
+}
+
+struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
+    planner: &'p Planner<'p, M>,
+    lat: Lattice,
+    walker: &'w Walker<'s, 'a>,
+    settings: SunAwareSettings,
+    edges: Vec<Option<Edge>>,
+    /// Lower bound of the driving time to the goal, per node (goal last).
+    h: Vec<f64>,
+    labels: Vec<Label>,
+    fronts: Vec<Vec<u32>>,
+    buckets: usize,
+    heap: BinaryHeap<Reverse<(u64, u32)>>,
+    stats: SearchStats,
+}
+
+impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
+    fn new(
+        planner: &'p Planner<'p, M>,
+        lat: Lattice,
+        walker: &'w Walker<'s, 'a>,
+        settings: &SunAwareSettings,
+    ) -> Self {
+        let g = lat.goal_cell;
+        let zg = planner.dem.data()[g] as f64;
+        let h = (0..=lat.nodes())
+            .map(|n| {
+                let c = lat.cell(n);
+                let dz = zg - planner.dem.data()[c] as f64;
+                let d = planner.distance_m(c, g);
+                if d > 0.0 && dz.is_finite() {
+                    planner.model.time_lower_bound_s(d, dz)
+                } else {
+                    0.0
+                }
+            })
+            .collect();
+        let buckets = (walker.clock.horizon_s() / settings.bucket_s).ceil() as usize + 1;
+        Search {
+            planner,
+            lat,
+            walker,
+            settings: *settings,
+            edges: vec![None; lat.nodes() * SLOTS],
+            h,
+            labels: Vec::new(),
+            fronts: Vec::new(),
+            buckets,
+            heap: BinaryHeap::new(),
+            stats: SearchStats {
+                nodes: lat.nodes(),
+                label_bytes: std::mem::size_of::<Label>(),
+                ..SearchStats::default()
+            },
+        }
+    }
+
+    /// The fine path from cell `a` to cell `b`, diagonal first, each step checked.
+    fn fine_path(&self, a: usize, b: usize) -> Edge {
+        let w = self.lat.w;
+        let mut out = Vec::new();
+        let mut at = a;
+        while at != b {
+            let dc = ((b % w) as i64 - (at % w) as i64).signum() as i32;
+            let dr = ((b / w) as i64 - (at / w) as i64).signum() as i32;
+            let dir = DIRECTIONS[..8]
+                .iter()
+                .position(|&o| o == (dc, dr))
+                .expect("a unit offset is one of the 8 directions");
+            let step = self.planner.geometry(at, dir)?;
+            let e = self.planner.model.step(&step)?;
+            out.push(FineStep {
+                pose: Pose {
+                    col: at % w,
+                    row: at / w,
+                    att: Attitude {
+                        heading_rad: step.heading_rad,
+                        pitch_rad: step.pitch_rad(),
+                        roll_rad: step.roll_rad(),
+                    },
+                },
+                energy_j: e.energy_j,
+                time_s: e.time_s,
+                to: step.to,
+            });
+            at = step.to;
+        }
+        Ok(out.into_boxed_slice())
+    }
+
+    /// Makes the edge in `slot` out of `node` (once); its index, or None when the slot
+    /// has no edge.
+    fn edge(&mut self, node: usize, slot: u8) -> Option<usize> {
+        let target = self.lat.target(node, slot)?;
+        let idx = node * SLOTS + slot as usize;
+        if self.edges[idx].is_none() {
+            let e = self.fine_path(self.lat.cell(node), self.lat.cell(target));
+            if let Err(why) = e {
+                count(&mut self.stats.edges_blocked, why);
+            }
+            self.edges[idx] = Some(e);
+        }
+        Some(idx)
+    }
+
+    /// Whether the goal can be reached on the lattice at all (tilt and cell blocks).
+    fn reachable(&mut self) -> Result<(), SunAwareError> {
+        let n = self.lat.nodes();
+        let mut seen = vec![false; n + 1];
+        let s = self.lat.node_of(self.lat.start_cell);
+        seen[s] = true;
+        let mut stack = vec![s];
+        while let Some(u) = stack.pop() {
+            for slot in 0..SLOTS as u8 {
+                let ok = self
+                    .edge(u, slot)
+                    .is_some_and(|e| matches!(self.edges[e], Some(Ok(_))));
+                if let (true, Some(v)) = (ok, self.lat.target(u, slot)) {
+                    if !seen[v] {
+                        seen[v] = true;
+                        if v != self.lat.goal() {
+                            stack.push(v);
+                        }
+                    }
+                }
+            }
+        }
+        if seen[self.lat.goal()] {
+            return Ok(());
+        }
+        let mut why = self.stats.edges_blocked.clone();
+        why.sort_by_key(|b| Reverse(b.1));
+        let list: Vec<String> = why
+            .iter()
+            .map(|(b, k)| format!("{} ({k} edges)", b.describe()))
+            .collect();
+        Err(self.no_plan(
+            Bound::Tilt,
+            format!(
+                "the goal cannot be reached on the {}-cell lattice at any time: edges are \
+                 closed by {}; try a smaller block (--block-cells) or check the tilt limits",
+                self.lat.b,
+                if list.is_empty() {
+                    "the grid's edge".to_string()
+                } else {
+                    list.join(", ")
+                }
+            ),
+        ))
+    }
+
+    fn no_plan(&self, bound: Bound, detail: String) -> SunAwareError {
+        SunAwareError::NoPlan {
+            bound,
+            detail,
+            stats: Box::new(self.stats.clone()),
+        }
+    }
+
+    /// The attitude a label's rover has while it waits: that of its last fine step.
+    fn arrival_pose(&self, l: &Label) -> Pose {
+        let cell = self.lat.cell(l.node as usize);
+        let att = match self.edges.get(l.in_edge as usize) {
+            Some(Some(Ok(steps))) => steps.last().map_or(Attitude::default(), |f| f.pose.att),
+            _ => Attitude::default(),
+        };
+        Pose {
+            col: cell % self.lat.w,
+            row: cell / self.lat.w,
+            att,
+        }
+    }
+
+    fn push(&mut self, l: Label) {
+        let idx = self.labels.len() as u32;
+        let key = l.walk.t_s + self.h[l.node as usize];
+        self.labels.push(l);
+        self.stats.labels_created += 1;
+        self.heap.push(Reverse((key.to_bits(), idx)));
+    }
+
+    /// Admits `l` into the front of its (node, bucket) unless a label there dominates
+    /// it; removes the labels it dominates.
+    fn admit(&mut self, l: Label) {
+        let b = ((l.walk.t_s / self.settings.bucket_s) as usize).min(self.buckets - 1);
+        let key = l.node as usize * self.buckets + b;
+        let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
+        let labels = &mut self.labels;
+        let front = &mut self.fronts[key];
+        if front.iter().any(|&i| {
+            let o = &labels[i as usize];
+            o.walk.t_s <= t && o.walk.pack.soc >= soc
+        }) {
+            self.stats.labels_dominated += 1;
+            return;
+        }
+        let before = front.len();
+        front.retain(|&i| {
+            let o = &mut labels[i as usize];
+            let beaten = t <= o.walk.t_s && soc >= o.walk.pack.soc;
+            if beaten {
+                o.alive = false;
+            }
+            !beaten
+        });
+        self.stats.labels_dominated += (before - front.len()) as u64;
+        front.push(self.labels.len() as u32);
+        self.push(l);
+    }
+
+    fn cut(&mut self, h: Halt) {
+        match h {
+            Halt::Reserve => self.stats.cut_reserve += 1,
+            Halt::Horizon => self.stats.cut_horizon += 1,
+            Halt::Hours => self.stats.cut_hours += 1,
+        }
+    }
+
+    /// Runs the search; returns the label of the chosen arrival.
+    fn run(&mut self, w0: Walk) -> Result<u32, SunAwareError> {
+        self.fronts = vec![Vec::new(); self.lat.nodes() * self.buckets];
+        let s = self.lat.node_of(self.lat.start_cell);
+        self.admit(Label {
+            walk: w0,
+            node: s as u32,
+            parent: u32::MAX,
+            how: START,
+            alive: true,
+            in_edge: u32::MAX,
+        });
+        let goal = self.lat.goal() as u32;
+        let mut best: Option<u32> = None;
+        while let Some(Reverse((_, i))) = self.heap.pop() {
+            let l = self.labels[i as usize];
+            if !l.alive {
+                continue;
+            }
+            if l.node == goal {
+                self.stats.complete = true;
+                return Ok(i);
+            }
+            if self.labels.len() >= self.settings.max_labels {
+                self.stats.complete = false;
+                return best.ok_or_else(|| self.budget_error());
+            }
+            self.stats.labels_expanded += 1;
+            self.expand(i, &l, &mut best);
+        }
+        self.stats.complete = true;
+        best.ok_or_else(|| self.exhausted_error())
+    }
+
+    fn expand(&mut self, i: u32, l: &Label, best: &mut Option<u32>) {
+        let horizon = self.walker.clock.horizon_s();
+        // Wait until the next bucket boundary.
+        let until = ((l.walk.t_s / self.settings.bucket_s).floor() + 1.0) * self.settings.bucket_s;
+        if until + self.h[l.node as usize] > horizon {
+            self.stats.cut_horizon += 1;
+        } else {
+            let mut w = l.walk;
+            let pose = self.arrival_pose(l);
+            match self.walker.hold(&mut w, &pose, until, None) {
+                Ok(()) => self.admit(Label {
+                    walk: w,
+                    parent: i,
+                    how: WAIT,
+                    ..*l
+                }),
+                Err(h) => self.cut(h),
+            }
+        }
+        // Drive along each edge.
+        let node = l.node as usize;
+        for slot in 0..SLOTS as u8 {
+            let Some(target) = self.lat.target(node, slot) else {
+                continue;
+            };
+            if l.walk.t_s + self.h[target] > horizon {
+                self.stats.cut_horizon += 1;
+                continue;
+            }
+            let Some(e) = self.edge(node, slot) else {
+                continue;
+            };
+            let Some(Ok(steps)) = &self.edges[e] else {
+                continue;
+            };
+            let mut w = l.walk;
+            let mut res = Ok(());
+            for f in steps.iter() {
+                res = self
+                    .walker
+                    .drive(&mut w, &f.pose, f.energy_j, f.time_s, None);
+                if res.is_err() {
+                    break;
+                }
+            }
+            let last_att = steps.last().map(|f| f.pose.att).unwrap_or_default();
+            if res.is_ok() && slot == GOAL_SLOT {
+                let g = self.lat.goal_cell;
+                let pose = Pose {
+                    col: g % self.lat.w,
+                    row: g / self.lat.w,
+                    att: last_att,
+                };
+                let mut arrived = w;
+                res = self.walker.arrive(&mut arrived, &pose, None);
+                // The label keeps the arrival time (before the closing step) and the
+                // state after it.
+                arrived.t_s = w.t_s;
+                w = arrived;
+            }
+            if let Err(h) = res {
+                self.cut(h);
+                continue;
+            }
+            let new = Label {
+                walk: w,
+                node: target as u32,
+                parent: i,
+                how: slot,
+                alive: true,
+                in_edge: (node * SLOTS + slot as usize) as u32,
+            };
+            if slot != GOAL_SLOT {
+                self.admit(new);
+                continue;
+            }
+            match self.settings.objective {
+                SunAwareObjective::EarliestArrival => self.push(new),
+                SunAwareObjective::MostCharge => {
+                    let idx = self.labels.len() as u32;
+                    let better = best.is_none_or(|b| {
+                        let o = &self.labels[b as usize].walk;
+                        (w.pack.soc, -w.t_s) > (o.pack.soc, -o.t_s)
+                    });
+                    self.labels.push(Label {
+                        alive: false,
+                        ..new
+                    });
+                    self.stats.labels_created += 1;
+                    if better {
+                        *best = Some(idx);
+                    }
+                }
+            }
+        }
+    }
+
+    fn budget_error(&self) -> SunAwareError {
+        self.no_plan(
+            Bound::LabelBudget,
+            format!(
+                "the label budget of {} labels ({} MB) ran out after {} expansions before \
+                 any arrival; raise the budget, use larger blocks or longer buckets",
+                self.settings.max_labels,
+                self.settings.max_labels * self.stats.label_bytes / 1_000_000,
+                self.stats.labels_expanded
+            ),
+        )
+    }
+
+    fn exhausted_error(&self) -> SunAwareError {
+        let st = &self.stats;
+        let (bound, what) = if st.cut_reserve > 0 && st.cut_horizon == 0 {
+            (
+                Bound::Reserve,
+                "every way falls below the reserve state of charge".to_string(),
+            )
+        } else if st.cut_reserve == 0 {
+            (
+                Bound::Horizon,
+                "no way arrives before the deadline".to_string(),
+            )
+        } else {
+            let bound = if st.cut_reserve >= st.cut_horizon {
+                Bound::Reserve
+            } else {
+                Bound::Horizon
+            };
+            (
+                bound,
+                "the ways that keep the reserve do not arrive before the deadline".to_string(),
+            )
+        };
+        self.no_plan(
+            bound,
+            format!(
+                "{what} ({} moves ran below the reserve, {} could not arrive before the \
+                 deadline of {:.1} h, {} labels expanded); a larger battery or panels, an \
+                 earlier start or a later deadline may help",
+                st.cut_reserve,
+                st.cut_horizon,
+                self.walker.clock.horizon_s() / 3600.0,
+                st.labels_expanded
+            ),
+        )
+    }
+
+    /// The plan of the chosen arrival label.
+    fn finish(mut self, found: u32) -> Result<SunAwarePlan, SunAwareError> {
+        let mut chain = Vec::new();
+        let mut i = found;
+        while i != u32::MAX {
+            chain.push(i);
+            i = self.labels[i as usize].parent;
+        }
+        chain.reverse();
+        let mut cells = vec![self.lat.start_cell];
+        let mut holds: Vec<Hold> = Vec::new();
+        for &i in &chain[1..] {
+            let l = self.labels[i as usize];
+            if l.how == WAIT {
+                let row = cells.len() - 1;
+                match holds.last_mut() {
+                    Some(h) if h.row == row => h.until_s = l.walk.t_s,
+                    _ => holds.push(Hold {
+                        row,
+                        until_s: l.walk.t_s,
+                    }),
+                }
+            } else if let Some(Some(Ok(steps))) = self.edges.get(l.in_edge as usize) {
+                cells.extend(steps.iter().map(|f| f.to));
+            }
+        }
+        let route = route_along(self.planner, &cells, self.stats.labels_expanded);
+        let (walk, ledger, arrival_s) =
+            walk_plan(self.walker, &route, &holds).expect("the found plan replays");
+        let stats = std::mem::take(&mut self.stats);
+        Ok(SunAwarePlan {
+            route,
+            holds,
+            arrival_s,
+            final_soc: walk.pack.soc,
+            min_soc: walk.min_soc,
+            ledger,
+            stats,
+        })
+    }
+}
+
+/// Walks a route with holds through the step arithmetic: the final state, the ledger and
+/// the arrival time (seconds after the start).
+fn walk_plan(
+    walker: &Walker<'_, '_>,
+    route: &Route,
+    holds: &[Hold],
+) -> Result<(Walk, Ledger, f64), Halt> {
+    let p = &route.profile;
+    let pose = |r: usize, a: usize| Pose {
+        col: p[r].col,
+        row: p[r].row,
+        att: Attitude {
+            heading_rad: p[a].heading_rad,
+            pitch_rad: p[a].pitch_rad,
+            roll_rad: p[a].roll_rad,
+        },
+    };
+    let mut w = walker.start().map_err(|_| Halt::Reserve)?;
+    let mut ledger = Ledger::default();
+    let mut next_hold = holds.iter().peekable();
+    for (i, row) in p.iter().enumerate().skip(1) {
+        if let Some(h) = next_hold.next_if(|h| h.row == i - 1) {
+            walker.hold(&mut w, &pose(i - 1, i - 1), h.until_s, Some(&mut ledger))?;
+        }
+        let (e, t) = (row.step_energy_j, row.step_time_s);
+        walker.drive(&mut w, &pose(i - 1, i), e, t, Some(&mut ledger))?;
+    }
+    let arrival = w.t_s;
+    let last = p.len() - 1;
+    walker.arrive(&mut w, &pose(last, last), Some(&mut ledger))?;
+    Ok((w, ledger, arrival))
+}
+
+fn count(v: &mut Vec<(Blocked, u64)>, why: Blocked) {
+    match v.iter_mut().find(|(b, _)| *b == why) {
+        Some(e) => e.1 += 1,
+        None => v.push((why, 1)),
+    }
+}

@@ -1,0 +1,386 @@
+//! The sun-aware planner (`mission::sunaware`): its plans replay in the ordinary
+//! simulation with the same energy, it survives a shadowed valley where the fixed route
+//! is stranded under every policy tried, it agrees with the fixed route on open flat
+//! terrain, and it names the bound that bit when there is no plan.
+
+use chrono::{DateTime, NaiveDate, Utc};
+use sunward::battery::ambient::{Ambient, MonthlyClimate};
+use sunward::battery::loads::Loads;
+use sunward::battery::pack::Pack;
+use sunward::battery::params::PackParams;
+use sunward::battery::thermal::{ThermalNode, ThermalParams};
+use sunward::mission::sim::{simulate, DriveHours, EndCondition, Policy, SimSetup, SkySetup};
+use sunward::mission::sunaware::{
+    plan_sun_aware, Bound, SunAwareError, SunAwareObjective, SunAwarePlan, SunAwareSettings,
+};
+use sunward::plan::{
+    plan_route, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
+};
+use sunward::sun::irradiance::LinkeTurbidity;
+use sunward::sun::panel::{CellTemperature, Mount, Panel};
+use sunward::sun::position::Observer;
+use sunward::sun::transposition::SkyModel;
+use sunward::terrain::horizon::{horizon_map, HorizonMap};
+use sunward::terrain::{Dem, GeoRef, Grid};
+use sunward::vehicle::plan_model::RoverStepModel;
+use sunward::vehicle::Rover;
+
+const CELL_M: f64 = 10.0;
+
+/// A valley running east-west: a bench in the north (z = 24 m, rows 0..24), a bank
+/// down to the floor (11° slope, rows 24..36), the floor (z = 0, rows 36..44), a wall
+/// too steep to drive (rows 44..52) and the ridge top (z = 160 m) in the south. At 60° N
+/// near the equinox the noon sun stands about 30° high, while the ridge rises 53° above
+/// the middle of the floor: the floor lies in the ridge's shadow all day, the bench is lit
+/// from mid-morning to mid-afternoon.
+fn valley() -> Dem {
+    let (w, h) = (240, 64);
+    let z = |r: usize| -> f32 {
+        match r {
+            0..24 => 24.0,
+            24..36 => 24.0 - 2.0 * (r - 24) as f32,
+            36..44 => 0.0,
+            44..52 => 20.0 * (r - 43) as f32,
+            _ => 160.0,
+        }
+    };
+    let data = (0..h).flat_map(|r| (0..w).map(move |_| z(r))).collect();
+    let mut g = GeoRef::local(CELL_M);
+    g.origin_y = h as f64 * CELL_M;
+    Grid::from_vec(w, h, data, g)
+}
+
+fn flat(w: usize, h: usize) -> Dem {
+    let mut g = GeoRef::local(CELL_M);
+    g.origin_y = h as f64 * CELL_M;
+    Grid::from_vec(w, h, vec![100.0; w * h], g)
+}
+
+/// Map point of cell (col, row) of a grid `h` rows high.
+fn at(label: &str, col: usize, row: usize, h: usize) -> RoutePoint {
+    RoutePoint {
+        label: label.into(),
+        x: (col as f64 + 0.5) * CELL_M,
+        y: (h - row) as f64 * CELL_M - 0.5 * CELL_M,
+    }
+}
+
+/// A slow survey rover (0.1 m/s), so that a crossing takes most of a day.
+fn rover() -> Rover {
+    Rover {
+        max_speed_m_s: 0.1,
+        ..Rover::default()
+    }
+}
+
+struct Kit {
+    rover: Rover,
+    pack: Pack,
+    thermal: ThermalNode,
+    loads: Loads,
+    ambient: Ambient,
+    panel: Panel,
+}
+
+fn kit(capacity_wh: f64) -> Kit {
+    Kit {
+        rover: rover(),
+        pack: Pack::new(&PackParams {
+            capacity_wh: Some(capacity_wh),
+            nominal_voltage_v: Some(25.6),
+            ..PackParams::default()
+        })
+        .unwrap(),
+        thermal: ThermalNode::new(&ThermalParams::default()).unwrap(),
+        loads: Loads::new(Vec::new()).unwrap(),
+        ambient: Ambient::Monthly(MonthlyClimate {
+            mean_c: [15.0; 12],
+            diurnal_swing_c: [0.0; 12],
+            peak_hour: 15.0,
+        }),
+        panel: Panel {
+            area_m2: 1.0,
+            efficiency_stc: 0.2,
+            temp_coeff_per_k: 0.0,
+            soiling_loss: 0.0,
+            mppt_efficiency: 1.0,
+            wiring_efficiency: 1.0,
+            cell_temperature: CellTemperature::default(),
+        },
+    }
+}
+
+fn policy(deadline_h: f64) -> Policy {
+    Policy {
+        drive_hours: DriveHours::Daylight,
+        min_soc_to_drive: 0.0,
+        resume_soc: 0.0,
+        deadline_s: deadline_h * 3600.0,
+        end: EndCondition::Arrival,
+        sleep_outside_hours: true,
+    }
+}
+
+fn setup<'a>(
+    route: &'a Route,
+    k: &'a Kit,
+    horizon: Option<&'a HorizonMap>,
+    policy: Policy,
+) -> SimSetup<'a> {
+    SimSetup {
+        route,
+        rover: &k.rover,
+        pack: &k.pack,
+        initial_soc: 1.0,
+        thermal: &k.thermal,
+        initial_box_temp_c: None,
+        electronics_heat_share: 0.3,
+        loads: &k.loads,
+        panel: &k.panel,
+        mount: Mount::BodyFixed {
+            normal_body: [0.0, 0.0, 1.0],
+        },
+        sky: SkySetup {
+            observer: Observer::new(60f64.to_radians(), 0.0, 100.0).unwrap(),
+            delta_t_s: 69.0,
+            linke: LinkeTurbidity::new([3.0; 12]).unwrap(),
+            sky_model: SkyModel::HayDavies,
+            albedo: 0.2,
+            wind_m_s: 1.0,
+            clearness_monthly: [1.0; 12],
+        },
+        horizon,
+        ambient: &k.ambient,
+        utc_offset_s: 0,
+        policy,
+        step_s: 60.0,
+        stops: Vec::new(),
+        holds: Vec::new(),
+    }
+}
+
+fn start_time() -> DateTime<Utc> {
+    NaiveDate::from_ymd_opt(2027, 9, 23)
+        .unwrap()
+        .and_hms_opt(0, 0, 0)
+        .unwrap()
+        .and_utc()
+}
+
+fn planner<'a>(
+    dem: &'a Dem,
+    flags: &'a CellFlags,
+    model: &'a RoverStepModel,
+) -> Planner<'a, RoverStepModel<'a>> {
+    Planner {
+        dem,
+        flags,
+        model,
+        limits: TiltLimits::default(),
+        connectivity: Connectivity::Eight,
+        objective: Objective::ENERGY,
+    }
+}
+
+/// Replays `plan` with the ordinary simulation and checks that it reproduces the
+/// search's energy. Tolerance: 1e-6 Wh and 1e-9 in state of charge. Both run the same
+/// models on the same steps, positions and attitudes; what differs is only the order
+/// of floating-point sums (the search prorates drive energy per grid step, the
+/// simulation per simulation step), a few ulps over a run.
+fn check_replay(plan: &SunAwarePlan, template: &SimSetup<'_>) {
+    let replay = plan.replay_setup(template);
+    let run = simulate(&replay, start_time()).unwrap();
+    assert!(
+        run.stranded.is_none(),
+        "replay stranded: {:?}",
+        run.stranded
+    );
+    let arrival = run.arrival.expect("replay arrives");
+    let arrival_s = (arrival - start_time()).num_milliseconds() as f64 / 1000.0;
+    assert!(
+        (arrival_s - plan.arrival_s).abs() < 1e-2,
+        "arrival {arrival_s} s vs {} s",
+        plan.arrival_s
+    );
+    let soc = run.samples.last().unwrap().soc;
+    assert!(
+        (soc - plan.final_soc).abs() < 1e-9,
+        "final SOC {soc} vs {}",
+        plan.final_soc
+    );
+    assert!((run.min_soc.0 - plan.min_soc).abs() < 1e-9);
+    let (a, b) = (&run.ledger, &plan.ledger);
+    for (name, x, y) in [
+        ("generated", a.generated_wh, b.generated_wh),
+        ("drive", a.drive_wh, b.drive_wh),
+        ("hotel", a.hotel_wh, b.hotel_wh),
+        ("heater", a.heater_wh, b.heater_wh),
+        ("losses", a.losses_wh, b.losses_wh),
+        ("stored", a.stored_delta_wh, b.stored_delta_wh),
+    ] {
+        assert!(
+            (x - y).abs() < 1e-6,
+            "{name}: simulation {x} Wh, search {y} Wh"
+        );
+    }
+}
+
+/// The valley: the energy-optimal fixed route runs along the shadowed floor and
+/// is stranded whatever the policy; the sun-aware plan climbs to the lit bench, charges
+/// there and arrives, and its replay is the simulation's own.
+#[test]
+fn valley_shadow_strands_the_fixed_route_but_not_the_sun_aware_plan() {
+    let dem = valley();
+    let horizons = horizon_map(&dem, 32, &sunward::progress::Silent).unwrap();
+    let flags = CellFlags::from_dem(&dem);
+    let k = kit(200.0);
+    let model = RoverStepModel::new(&k.rover);
+    let p = planner(&dem, &flags, &model);
+    let h = dem.height();
+    let (from, to) = (at("start", 8, 40, h), at("goal", 232, 40, h));
+    let fixed = plan_route(&p, &[from.clone(), to.clone()]).unwrap();
+    // The fixed route keeps to the floor.
+    assert!(fixed.profile.iter().all(|r| r.row >= 36 && r.row < 44));
+    for drive_hours in [DriveHours::Daylight, DriveHours::Always] {
+        for (min_soc, resume) in [(0.0, 0.0), (0.3, 0.6), (0.5, 0.9), (0.8, 1.0)] {
+            let pol = Policy {
+                drive_hours,
+                min_soc_to_drive: min_soc,
+                resume_soc: resume,
+                ..policy(96.0)
+            };
+            let run = simulate(&setup(&fixed, &k, Some(&horizons), pol), start_time()).unwrap();
+            assert!(
+                run.arrival.is_none() || run.min_soc.0 < k.pack.params().reserve_soc,
+                "fixed route survives with {pol:?}"
+            );
+        }
+    }
+    let template = setup(&fixed, &k, Some(&horizons), policy(96.0));
+    let settings = SunAwareSettings {
+        block_cells: 8,
+        bucket_s: 3600.0,
+        ..SunAwareSettings::default()
+    };
+    let plan = plan_sun_aware(&p, &template, &from, &to, start_time(), &settings).unwrap();
+    eprintln!(
+        "valley: arrival {:.1} h, final SOC {:.3}, min SOC {:.3}, {} holds, stats {:?}",
+        plan.arrival_s / 3600.0,
+        plan.final_soc,
+        plan.min_soc,
+        plan.holds.len(),
+        plan.stats
+    );
+    assert!(plan.min_soc >= k.pack.params().reserve_soc);
+    // It leaves the shadowed floor for the lit upper slope.
+    assert!(plan.route.profile.iter().any(|r| r.row < 36));
+    check_replay(&plan, &template);
+}
+
+/// Open flat terrain with a large battery: nothing to gain by waiting or detouring. With
+/// driving allowed at any hour the sun-aware plan is the fixed route (same cells, no
+/// holds, same arrival and charge); within daylight hours it arrives less than one bucket
+/// after the fixed route (its departures fall on bucket boundaries), and asking for the
+/// most charge instead never gives less charge.
+#[test]
+fn open_flat_terrain_both_planners_agree() {
+    let dem = flat(120, 20);
+    let flags = CellFlags::from_dem(&dem);
+    let k = kit(2000.0);
+    let model = RoverStepModel::new(&k.rover);
+    let p = planner(&dem, &flags, &model);
+    let h = dem.height();
+    let (from, to) = (at("start", 4, 10, h), at("goal", 116, 10, h));
+    let fixed = plan_route(&p, &[from.clone(), to.clone()]).unwrap();
+    let settings = SunAwareSettings {
+        block_cells: 8,
+        bucket_s: 1800.0,
+        ..SunAwareSettings::default()
+    };
+    let always = Policy {
+        drive_hours: DriveHours::Always,
+        ..policy(48.0)
+    };
+    let template = setup(&fixed, &k, None, always);
+    let run = simulate(&template, start_time()).unwrap();
+    let plan = plan_sun_aware(&p, &template, &from, &to, start_time(), &settings).unwrap();
+    assert!(plan.holds.is_empty());
+    assert_eq!(plan.route.cells(), fixed.cells());
+    let arrival_s = (run.arrival.unwrap() - start_time()).num_milliseconds() as f64 / 1000.0;
+    assert!((plan.arrival_s - arrival_s).abs() < 1e-2);
+    assert!((plan.final_soc - run.samples.last().unwrap().soc).abs() < 1e-9);
+    check_replay(&plan, &template);
+
+    let template = setup(&fixed, &k, None, policy(48.0));
+    let run = simulate(&template, start_time()).unwrap();
+    let plan = plan_sun_aware(&p, &template, &from, &to, start_time(), &settings).unwrap();
+    let arrival_s = (run.arrival.unwrap() - start_time()).num_milliseconds() as f64 / 1000.0;
+    assert!(run.stranded.is_none());
+    assert_eq!(plan.route.cells(), fixed.cells());
+    assert!(
+        plan.arrival_s >= arrival_s - 1e-6 && plan.arrival_s < arrival_s + settings.bucket_s,
+        "sun-aware {} s, fixed {arrival_s} s",
+        plan.arrival_s
+    );
+    check_replay(&plan, &template);
+    let most = SunAwareSettings {
+        objective: SunAwareObjective::MostCharge,
+        ..settings
+    };
+    let rich = plan_sun_aware(&p, &template, &from, &to, start_time(), &most).unwrap();
+    assert!(rich.final_soc >= plan.final_soc - 1e-12);
+    assert!(rich.stats.complete);
+    check_replay(&rich, &template);
+}
+
+fn bound_of(r: Result<SunAwarePlan, SunAwareError>) -> (Bound, String) {
+    match r {
+        Err(SunAwareError::NoPlan { bound, detail, .. }) => (bound, detail),
+        other => panic!("expected no plan, got {other:?}"),
+    }
+}
+
+/// Each search bound, made to bite on its own, is the one named.
+#[test]
+fn no_plan_names_the_bound_that_bit() {
+    let dem = valley();
+    let horizons = horizon_map(&dem, 32, &sunward::progress::Silent).unwrap();
+    let flags = CellFlags::from_dem(&dem);
+    let k = kit(200.0);
+    let model = RoverStepModel::new(&k.rover);
+    let p = planner(&dem, &flags, &model);
+    let h = dem.height();
+    let (from, to) = (at("start", 8, 40, h), at("goal", 232, 40, h));
+    let fixed = plan_route(&p, &[from.clone(), to.clone()]).unwrap();
+    let settings = SunAwareSettings {
+        block_cells: 8,
+        bucket_s: 3600.0,
+        ..SunAwareSettings::default()
+    };
+    let plan = |pol: Policy, to: &RoutePoint, s: &SunAwareSettings, soc: f64| {
+        let mut t = setup(&fixed, &k, Some(&horizons), pol);
+        t.initial_soc = soc;
+        plan_sun_aware(&p, &t, &from, to, start_time(), s)
+    };
+    // The ridge top lies behind a wall steeper than the uphill limit.
+    let (b, detail) = bound_of(plan(policy(96.0), &at("top", 120, 60, h), &settings, 1.0));
+    assert_eq!(b, Bound::Tilt);
+    assert!(detail.contains("uphill pitch limit"), "{detail}");
+    // Six hours cannot hold a 2.3 km drive at 0.1 m/s.
+    let (b, _) = bound_of(plan(policy(6.0), &to, &settings, 1.0));
+    assert_eq!(b, Bound::Horizon);
+    // Awake all night (driving allowed at any hour) from just above the reserve.
+    let always = Policy {
+        drive_hours: DriveHours::Always,
+        ..policy(96.0)
+    };
+    let (b, _) = bound_of(plan(always, &to, &settings, 0.21));
+    assert_eq!(b, Bound::Reserve);
+    let tiny = SunAwareSettings {
+        max_labels: 20,
+        ..settings
+    };
+    let (b, detail) = bound_of(plan(policy(96.0), &to, &tiny, 1.0));
+    assert_eq!(b, Bound::LabelBudget);
+    assert!(detail.contains("20 labels"), "{detail}");
+}
