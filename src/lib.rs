@@ -56,6 +56,8 @@
 //! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
+//! - [`mission::sunaware`]: sun-aware planning, a route and a schedule of holds from a
+//!   time-dependent label search priced by the simulation's own step arithmetic.
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!

@@ -15,6 +15,8 @@
 //! - [`ledger`]: energy bookkeeping that closes, and daily budgets.
 //! - [`runner`]: one run per season, in parallel, with verdicts and daily budgets.
 //! - [`verdict`]: a season's verdict and margin.
+//! - [`sunaware`]: a route with a schedule of holds that keeps the rover lit and above
+//!   its reserve (a time-dependent search), replayable by [`sim`].
 
 pub mod ledger;
 pub mod resolve;

@@ -221,21 +221,44 @@ impl Walker<'_, '_> {
     }
 
     /// Holds at `pose` until `until_s` (a step boundary after the walk's time).
+    /// `panels`, when given, holds the panel output at `pose` of steps `k0..` (what
+    /// [`Self::panel_w`] gives; a cache shared by every label that waits there).
     pub(crate) fn hold(
         &self,
         w: &mut Walk,
         pose: &Pose,
         until_s: f64,
         mut ledger: Option<&mut Ledger>,
+        panels: Option<(&[f64], usize)>,
     ) -> Result<(), Halt> {
         if until_s > self.clock.horizon_s() {
             return Err(Halt::Horizon);
         }
         while f64::from(w.next_j) * self.clock.dt < until_s {
-            self.close(w, pose, ledger.as_deref_mut())?;
+            let k = w.next_j as usize - 1;
+            let gen = panels.and_then(|(g, k0)| k.checked_sub(k0).and_then(|i| g.get(i)));
+            self.close_with(w, pose, ledger.as_deref_mut(), gen.copied())?;
         }
         w.t_s = until_s;
         Ok(())
+    }
+
+    /// Panel output at `pose` in step `k`, W (zero past the horizon).
+    pub(crate) fn panel_w(&self, pose: &Pose, k: usize) -> f64 {
+        let s = self.setup;
+        let Some(x) = self.clock.steps.get(k) else {
+            return 0.0;
+        };
+        let poa = x
+            .sky
+            .as_ref()
+            .map_or(0.0, |sky| poa_on(s, sky, &pose.att, pose.col, pose.row));
+        s.panel.power_at_w(poa, x.air_c, s.sky.wind_m_s)
+    }
+
+    /// The simulation step holding instant `t_s`.
+    pub(crate) fn step_of(&self, t_s: f64) -> usize {
+        (t_s / self.clock.dt).floor() as usize
     }
 
     /// Ends the run at the goal: closes the step that holds the arrival.
@@ -253,6 +276,17 @@ impl Walker<'_, '_> {
 
     /// Closes the step ending at boundary `w.next_j` with the rover at `pose`.
     fn close(&self, w: &mut Walk, pose: &Pose, ledger: Option<&mut Ledger>) -> Result<(), Halt> {
+        self.close_with(w, pose, ledger, None)
+    }
+
+    /// [`Self::close`] with the step's panel output given when known.
+    fn close_with(
+        &self,
+        w: &mut Walk,
+        pose: &Pose,
+        ledger: Option<&mut Ledger>,
+        panel_w: Option<f64>,
+    ) -> Result<(), Halt> {
         let s = self.setup;
         let dt = self.clock.dt;
         let k = w.next_j as usize - 1;
@@ -264,11 +298,7 @@ impl Walker<'_, '_> {
         } else {
             Activity::Parked
         };
-        let poa = x
-            .sky
-            .as_ref()
-            .map_or(0.0, |sky| poa_on(s, sky, &pose.att, pose.col, pose.row));
-        let gen_w = s.panel.power_at_w(poa, x.air_c, s.sky.wind_m_s);
+        let gen_w = panel_w.unwrap_or_else(|| self.panel_w(pose, k));
         let hotel_w = if activity == Activity::Asleep {
             0.0
         } else {
