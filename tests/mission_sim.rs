@@ -130,6 +130,7 @@ fn setup<'a>(
         policy,
         step_s: 60.0,
         stops: Vec::new(),
+        start_local_h: 0.0,
     }
 }
 

@@ -167,6 +167,9 @@ pub struct SimSetup<'a> {
     pub step_s: f64,
     /// Payload stops along the route, in route order.
     pub stops: Vec<Stop>,
+    /// Local hour at which the runner starts each season, 0 to 24 (the mission's
+    /// `simulation.start_local_h`); [`simulate`] itself starts where it is told.
+    pub start_local_h: f64,
 }
 
 /// Why a run stopped short.
