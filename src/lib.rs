@@ -71,6 +71,7 @@ pub mod mission;
 pub mod plan;
 pub mod progress;
 pub mod report;
+pub mod study;
 pub mod sun;
 pub mod terrain;
 pub mod units;
