@@ -121,6 +121,7 @@ fn main() {
         step_s: 60.0,
         stops: Vec::new(),
         holds: Vec::new(),
+        start_local_h: 0.0,
     };
     let t0 = NaiveDate::from_ymd_opt(2027, 9, 23)
         .unwrap()

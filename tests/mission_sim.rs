@@ -131,6 +131,7 @@ fn setup<'a>(
         step_s: 60.0,
         stops: Vec::new(),
         holds: Vec::new(),
+        start_local_h: 0.0,
     }
 }
 

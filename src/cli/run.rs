@@ -5,15 +5,12 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
-use sunward::battery::ambient::Ambient;
-use sunward::battery::pack::Pack;
-use sunward::battery::thermal::ThermalNode;
-use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
+use sunward::mission::prepare::{self, select_seasons, sim_setup, Ground, Models};
+use sunward::mission::resolve::{Mission, Season};
 use sunward::mission::runner::{run_seasons_with, SeasonResult};
-use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
-use sunward::plan::route::{leg_costs, locate};
-use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
+use sunward::plan::route::locate;
+use sunward::plan::{Planner, Route};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
@@ -21,9 +18,8 @@ use sunward::report::json::{summary, summary_json};
 use sunward::report::map::route_map_rgb;
 use sunward::report::plot::{render_png, render_svg};
 use sunward::report::season_plot::{season_chart, seasons_chart};
-use sunward::sun::position::{delta_t_model_s, Observer};
 use sunward::terrain::io::png;
-use sunward::terrain::{hillshade, horizon, io::read_dem, Dem};
+use sunward::terrain::{hillshade, horizon, Dem};
 use sunward::vehicle::plan_model::RoverStepModel;
 use sunward::Error;
 
@@ -62,141 +58,6 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
     })
 }
 
-/// Cells closed by the mission's keep-out raster (cells with data are closed).
-fn flags_for(m: &Mission, dem: &Dem) -> Result<CellFlags, Error> {
-    let mut flags = CellFlags::from_dem(dem);
-    if let Some(path) = &m.terrain.keep_out_path {
-        let mask = read_dem(path, &m.terrain.read)?;
-        if (mask.width(), mask.height()) != (dem.width(), dem.height()) {
-            return Err(Error::Usage(format!(
-                "{}: the keep-out raster is {} x {} cells, the terrain {} x {}. Fix: give a \
-                 keep-out raster on the terrain's grid",
-                path.display(),
-                mask.width(),
-                mask.height(),
-                dem.width(),
-                dem.height()
-            )));
-        }
-        for (i, v) in mask.data().iter().enumerate() {
-            if !v.is_nan() {
-                flags.block(i, sunward::plan::Blocked::KeepOut);
-            }
-        }
-    }
-    Ok(flags)
-}
-
-/// The route: start, waypoints, the sites in visiting order, goal.
-fn route_points(m: &Mission, order: &[usize]) -> Vec<RoutePoint> {
-    let mut pts = vec![m.route.start.point.clone()];
-    pts.extend(m.route.waypoints.iter().map(|w| w.point.clone()));
-    pts.extend(order.iter().map(|&i| m.route.sites[i].place.point.clone()));
-    pts.push(m.route.goal.point.clone());
-    pts
-}
-
-/// The cheapest order of the unordered sites on the open path from the last waypoint
-/// (or the start) to the goal: pairwise route costs, then `plan::sites` on a matrix whose
-/// "return to base" legs are the legs to the goal, so the optimal tour is the optimal
-/// open path (Held-Karp, exact, up to 10 sites). Without any complete order, the file's. Without any complete order, the file's.
-fn site_order<M: sunward::plan::StepModel + ?Sized>(
-    m: &Mission,
-    planner: &Planner<'_, M>,
-) -> Result<Vec<usize>, Error> {
-    use sunward::plan::sites::{graph_from_matrix, order_sites, OrderOptions};
-    let n = m.route.sites.len();
-    if n <= 1 {
-        return Ok((0..n).collect());
-    }
-    let anchor = m
-        .route
-        .waypoints
-        .last()
-        .unwrap_or(&m.route.start)
-        .point
-        .clone();
-    let mut nodes = vec![anchor];
-    nodes.extend(m.route.sites.iter().map(|s| s.place.point.clone()));
-    let cells: Vec<usize> = nodes
-        .iter()
-        .map(|p| locate(planner, p))
-        .collect::<Result<_, _>>()?;
-    // Column 0 is the goal instead of the leg's start: the tour's return leg.
-    let mut targets = cells.clone();
-    targets[0] = locate(planner, &m.route.goal.point)?;
-    let costs = leg_costs(planner, &cells, &targets);
-    let names: Vec<String> = std::iter::once("the leg's start".to_string())
-        .chain(m.route.sites.iter().map(|s| s.place.point.label.clone()))
-        .collect();
-    // When some leg cannot be driven no order exists; keep the file's order and let the
-    // route planner explain which limit closes the way.
-    let tour = graph_from_matrix(&costs, Some(&names))
-        .and_then(|g| order_sites(&g, &OrderOptions::default()));
-    Ok(match tour {
-        Ok(t) => t.order[1..t.order.len() - 1]
-            .iter()
-            .map(|&i| i - 1)
-            .collect(),
-        Err(_) => (0..n).collect(),
-    })
-}
-
-/// The payload stops: the profile row where the route reaches each site, walking the
-/// route points in order (start, waypoints, sites, goal).
-fn site_stops<M: sunward::plan::StepModel + ?Sized>(
-    m: &Mission,
-    planner: &Planner<'_, M>,
-    route: &Route,
-    order: &[usize],
-) -> Vec<Stop> {
-    let w = planner.dem.width();
-    let mut from = 0;
-    let mut stops = Vec::new();
-    let points = route_points(m, order);
-    let first_site = 1 + m.route.waypoints.len();
-    for (i, p) in points.iter().enumerate().skip(1) {
-        let Ok(cell) = locate(planner, p) else {
-            continue;
-        };
-        let Some(k) = route.profile[from..]
-            .iter()
-            .position(|r| r.row * w + r.col == cell)
-        else {
-            continue;
-        };
-        from += k;
-        if i >= first_site && i < first_site + m.route.sites.len() {
-            stops.push(Stop {
-                row: from,
-                duration_s: m.route.sites[order[i - first_site]].payload_s,
-            });
-        }
-    }
-    stops
-}
-
-fn policy(m: &Mission) -> Policy {
-    let drive_hours = match m.policy.driving {
-        DrivingHours::Daylight => DriveHours::Daylight,
-        DrivingHours::Window { start_h, end_h } => DriveHours::LocalWindow { start_h, end_h },
-        DrivingHours::AnyTime => DriveHours::Always,
-    };
-    Policy {
-        drive_hours,
-        min_soc_to_drive: m.policy.min_soc_to_drive,
-        resume_soc: m.policy.park_and_charge_to_soc,
-        deadline_s: m.policy.deadline_s,
-        end: EndCondition::Arrival,
-        sleep_outside_hours: m.policy.overnight == Overnight::Sleep,
-    }
-}
-
-/// Share of the hotel and payload power that heats the battery box: 0.3 is an
-/// assumption with no source (electronics mostly outside an insulated battery box); it
-/// belongs in the mission's `[thermal]` table once the file has the key.
-const ELECTRONICS_HEAT_SHARE: f64 = 0.3;
-
 pub fn run(a: RunArgs) -> Result<(), Error> {
     let feasible = run_mission(&a.mission, &a.out, &a.season, a.quiet)?;
     if a.fail_on_infeasible && !feasible {
@@ -225,32 +86,14 @@ pub fn run_mission(
         source,
     })?;
     super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
-    if let Sky::Csv { path } = &m.weather.sky {
-        return Err(Error::Usage(format!(
-            "{}: weather files are not used by the simulation yet. Fix: use the clear sky \
-             ([weather] sky = \"clear\") for now",
-            path.display()
-        )));
-    }
-    let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
-    let flags = flags_for(&m, &dem)?;
-    let model = RoverStepModel::new(&m.rover);
-    let planner = Planner {
-        dem: &dem,
-        flags: &flags,
-        model: &model,
-        limits: m.route.tilt,
-        connectivity: m.route.connectivity,
-        objective: m.route.objective,
+    let models = Models::new(&m)?;
+    let ground = Ground::load(&m)?;
+    let seasons = select_seasons(&m, &a.season)?;
+    let planned = match prepare::plan(&m, &ground)? {
+        Ok(p) => p,
+        Err(e) => return unplannable(&a, &m, &seasons, &e),
     };
-    let order = site_order(&m, &planner)?;
-    let route = match plan_route(&planner, &route_points(&m, &order)) {
-        Ok(r) => r,
-        Err(e @ sunward::plan::PlanError::Unreachable { .. }) => {
-            return unplannable(&a, &m, &e);
-        }
-        Err(e) => return Err(e.into()),
-    };
+    let route = &planned.route;
     if !a.quiet {
         eprintln!(
             "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
@@ -262,88 +105,24 @@ pub fn run_mission(
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, progress)?;
-    let stops = site_stops(&m, &planner, &route, &order);
-    let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season, progress)?;
+    let horizons = horizon::horizon_map(&ground.dem, horizon::DEFAULT_SECTORS, progress)?;
+    let setup = sim_setup(&m, &models, &planned, Some(&horizons));
+    let results = run_seasons_with(&setup, &seasons, progress)
+        .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
-    write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
+    let model = RoverStepModel::new(&m.rover);
+    let planner = ground.planner(&m, &model);
+    write_outputs(
+        mission_dir,
+        &a.out,
+        &m,
+        &ground.dem,
+        route,
+        &planner,
+        &results,
+    )?;
     print_verdicts(&m, &results, &a.out);
     Ok(results.iter().all(|r| r.summary.feasible))
-}
-
-fn simulate_seasons(
-    m: &Mission,
-    route: &Route,
-    stops: &[Stop],
-    horizons: &horizon::HorizonMap,
-    only: &[String],
-    progress: &dyn sunward::progress::Progress,
-) -> Result<Vec<SeasonResult>, Error> {
-    let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
-    let pack = Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?;
-    let thermal = ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?;
-    let ambient = Ambient::Monthly(m.weather.climate.clone());
-    let (linke, clearness_monthly) = match &m.weather.sky {
-        Sky::ClearSky(l) => (*l, [1.0; 12]),
-        Sky::Clearness { linke, monthly } => (*linke, *monthly),
-        Sky::Csv { .. } => unreachable!("refused before"),
-    };
-    let observer = Observer::new(
-        m.site.latitude_rad,
-        m.site.longitude_rad,
-        m.site.elevation_m,
-    )
-    .map_err(|e| stage(e.to_string()))?;
-    let year = m
-        .seasons
-        .first()
-        .map_or(2027, |s| chrono::Datelike::year(&s.date));
-    let setup = SimSetup {
-        route,
-        rover: &m.rover,
-        pack: &pack,
-        initial_soc: 1.0,
-        thermal: &thermal,
-        initial_box_temp_c: None,
-        electronics_heat_share: ELECTRONICS_HEAT_SHARE,
-        loads: &m.loads,
-        panel: &m.panels.panel,
-        mount: m.panels.mount,
-        sky: SkySetup {
-            observer,
-            delta_t_s: delta_t_model_s(f64::from(year) + 0.5),
-            linke,
-            sky_model: m.weather.sky_model,
-            albedo: m.weather.albedo,
-            wind_m_s: m.weather.wind_m_s,
-            clearness_monthly,
-        },
-        horizon: Some(horizons),
-        ambient: &ambient,
-        utc_offset_s: i64::from(m.site.utc_offset.local_minus_utc()),
-        policy: policy(m),
-        step_s: m.step_s,
-        stops: stops.to_vec(),
-        holds: Vec::new(),
-    };
-    let seasons: Vec<_> = m
-        .seasons
-        .iter()
-        .filter(|s| only.is_empty() || only.iter().any(|o| s.name.contains(o.as_str())))
-        .cloned()
-        .collect();
-    if seasons.is_empty() {
-        return Err(Error::Usage(format!(
-            "no season matches --season {:?}; the mission has: {}",
-            only,
-            m.seasons
-                .iter()
-                .map(|s| s.name.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        )));
-    }
-    run_seasons_with(&setup, &seasons, progress).map_err(|e| stage(e.to_string()))
 }
 
 fn slug(name: &str) -> String {
@@ -359,60 +138,15 @@ fn slug(name: &str) -> String {
 }
 
 /// The route cannot be planned: every season is infeasible, stranded at its start by
-/// the limit that closes the way (`tilt` for pitch and roll, `traction` for traction and
-/// sinkage, `terrain` for keep-out, no-data, roughness or the grid edge). Writes
+/// the limit that closes the way (see `sunward::mission::prepare::unplannable`). Writes
 /// summary.json only.
-fn unplannable(a: &RunArgs, m: &Mission, e: &sunward::plan::PlanError) -> Result<bool, Error> {
-    use sunward::mission::ledger::Ledger;
-    use sunward::mission::runner::local_midnight;
-    use sunward::mission::sim::{Run, Stranded};
-    use sunward::mission::verdict::summarize;
-    use sunward::plan::Blocked;
-    let sunward::plan::PlanError::Unreachable {
-        detail, nearest_xy, ..
-    } = e
-    else {
-        unreachable!("called for unreachable routes only")
-    };
-    let cause = match detail.closed_by.first().map(|c| c.0) {
-        Some(Blocked::PitchUp | Blocked::PitchDown | Blocked::Roll) => "tilt",
-        Some(Blocked::Traction | Blocked::Sinkage) => "traction",
-        _ => "terrain",
-    };
-    let offset = i64::from(m.site.utc_offset.local_minus_utc());
-    let results: Vec<SeasonResult> = m
-        .seasons
-        .iter()
-        .filter(|s| a.season.is_empty() || a.season.iter().any(|o| s.name.contains(o.as_str())))
-        .map(|season| {
-            let start = local_midnight(season.date, offset);
-            let run = Run {
-                samples: Vec::new(),
-                ledger: Ledger::default(),
-                arrival: None,
-                stranded: Some(Stranded {
-                    time: start,
-                    x: nearest_xy.0,
-                    y: nearest_xy.1,
-                    cause,
-                    detail: e.to_string(),
-                }),
-                min_soc: (1.0, start),
-                hours_below_reserve: 0.0,
-                storage_breach: None,
-                distance_m: 0.0,
-                in_hours_s: 0.0,
-                charging_hold_s: 0.0,
-            };
-            let summary = summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);
-            SeasonResult {
-                season: season.clone(),
-                run,
-                summary,
-                days: Vec::new(),
-            }
-        })
-        .collect();
+fn unplannable(
+    a: &RunArgs,
+    m: &Mission,
+    seasons: &[Season],
+    e: &sunward::plan::PlanError,
+) -> Result<bool, Error> {
+    let results = prepare::unplannable(m, seasons, e);
     let inputs = serde_json::json!({"route": "not plannable", "reason": e.to_string()});
     let doc = summary(&m.site.name, &results, inputs);
     let text = summary_json(&doc);
@@ -487,12 +221,15 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             ),
             a(
                 "battery box heating",
-                format!("{ELECTRONICS_HEAT_SHARE} of the electronics' power"),
-                "assumption, no source",
+                format!(
+                    "{} of the electronics' power",
+                    m.thermal.electronics_heat_share
+                ),
+                "mission file ([thermal] electronics_heat_share; default 0.3 is an assumption)",
             ),
             a(
                 "start of each season",
-                "local midnight, full pack".into(),
+                format!("{:05.2} h local time, full pack", m.start_local_h),
                 "sunward convention",
             ),
             a("simulation step", format!("{} s", m.step_s), "mission file"),
@@ -529,7 +266,9 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         "panel_area_m2": m.panels.panel.area_m2,
         "step_s": m.step_s,
         "deadline_s": m.policy.deadline_s,
-        "initial_soc": 1.0,
+        "initial_soc": prepare::INITIAL_SOC,
+        "start_local_h": m.start_local_h,
+        "electronics_heat_share": m.thermal.electronics_heat_share,
     });
     let doc = summary(&m.site.name, results, inputs);
     let text = summary_json(&doc);

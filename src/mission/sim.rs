@@ -185,6 +185,9 @@ pub struct SimSetup<'a> {
     pub stops: Vec<Stop>,
     /// Scheduled holds, in route order with increasing rows (empty: the policy alone).
     pub holds: Vec<Hold>,
+    /// Local hour at which the runner starts each season, 0 to 24 (the mission's
+    /// `simulation.start_local_h`); [`simulate`] itself starts where it is told.
+    pub start_local_h: f64,
 }
 
 /// Why a run stopped short.
