@@ -211,6 +211,12 @@ fn check_replay(plan: &SunAwarePlan, template: &SimSetup<'_>) {
     );
     assert!((run.min_soc.0 - plan.min_soc).abs() < 1e-9);
     let (a, b) = (&run.ledger, &plan.ledger);
+    eprintln!(
+        "replay: SOC {:.3e}, generated {:.3e} Wh, stored {:.3e} Wh apart",
+        soc - plan.final_soc,
+        a.generated_wh - b.generated_wh,
+        a.stored_delta_wh - b.stored_delta_wh
+    );
     for (name, x, y) in [
         ("generated", a.generated_wh, b.generated_wh),
         ("drive", a.drive_wh, b.drive_wh),
@@ -276,6 +282,16 @@ fn valley_shadow_strands_the_fixed_route_but_not_the_sun_aware_plan() {
     // It leaves the shadowed floor for the lit upper slope.
     assert!(plan.route.profile.iter().any(|r| r.row < 36));
     check_replay(&plan, &template);
+    // Panels tilted 40° toward the rover's right: their output turns with the heading,
+    // on the move and while waiting (the rover keeps the heading it arrived with).
+    let mut tilted = template.clone();
+    tilted.mount = Mount::FixedTilt {
+        tilt_rad: 40f64.to_radians(),
+        relative_azimuth_rad: 90f64.to_radians(),
+    };
+    let plan = plan_sun_aware(&p, &tilted, &from, &to, start_time(), &settings).unwrap();
+    assert!(plan.min_soc >= k.pack.params().reserve_soc);
+    check_replay(&plan, &tilted);
 }
 
 /// Open flat terrain with a large battery: nothing to gain by waiting or detouring. With
