@@ -28,6 +28,20 @@ use sunward::terrain::synth::{synthesize, SynthParams};
 use sunward::vehicle::plan_model::RoverStepModel;
 use sunward::vehicle::Rover;
 
+/// CPU seconds this process has used (user + system, from /proc/self/stat; 0 where
+/// there is no /proc): on a shared machine the wall time alone says little.
+fn cpu_s() -> f64 {
+    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
+    let after = stat.rsplit(')').next().unwrap_or("");
+    let f: Vec<f64> = after
+        .split_whitespace()
+        .map(|x| x.parse().unwrap_or(0.0))
+        .collect();
+    // Fields 14 and 15 of the line (utime, stime) are 12 and 13 after the ')'; clock
+    // ticks of 1/100 s (the Linux default USER_HZ).
+    (f.get(11).unwrap_or(&0.0) + f.get(12).unwrap_or(&0.0)) / 100.0
+}
+
 fn env(name: &str, default: usize) -> usize {
     std::env::var(name)
         .ok()
@@ -157,16 +171,20 @@ fn main() {
         {
             settings.bucket_s = b;
         }
-        let t = Instant::now();
+        let (t, c) = (Instant::now(), cpu_s());
         let plan = plan_sun_aware(&planner, &setup, &from, &to, t0, &settings);
         let secs = t.elapsed().as_secs_f64();
+        let cpu = cpu_s() - c;
         match plan {
             Ok(p) => println!(
-                "sunaware {objective:?}: {secs:.2} s (target 60 s), {} labels expanded, {} made, \
-                 {} dominated; arrival {:.2} h, final SOC {:.3}, {} holds, {:.0} m",
+                "sunaware {objective:?}: {secs:.2} s wall, {cpu:.2} s CPU (target 60 s), {} \
+                 labels expanded, {} made, {} dominated, refined {} ({} corridor nodes); \
+                 arrival {:.2} h, final SOC {:.3}, {} holds, {:.0} m",
                 p.stats.labels_expanded,
                 p.stats.labels_created,
                 p.stats.labels_dominated,
+                p.stats.refined,
+                p.stats.refine_nodes,
                 p.arrival_s / 3600.0,
                 p.final_soc,
                 p.holds.len(),

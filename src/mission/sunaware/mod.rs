@@ -59,6 +59,12 @@
 //! passage narrower than a block or not on a straight line between nodes (the price of
 //! the coarse grid); `block_cells = 1` searches the fine grid itself.
 //!
+//! **Refinement** (`refine`, on by default): a second search on a lattice of
+//! ⌈block/4⌉-cell spacing (aligned on the start, so every coarse node and every coarse
+//! straight edge is also on it), restricted to the nodes within two coarse blocks of the
+//! coarse plan's route; the better of the two plans is kept (the coarse one when the
+//! refined search finds nothing better or runs out of labels).
+//!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
 //! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
 //! ordinary [`simulate`](crate::mission::sim::simulate) with
@@ -119,6 +125,9 @@ pub struct SunAwareSettings {
     pub soc_resolution: f64,
     /// What to optimise.
     pub objective: SunAwareObjective,
+    /// Search again on a lattice four times finer (at least one cell) within two
+    /// blocks of the coarse plan's route, and keep the better plan.
+    pub refine: bool,
 }
 
 impl Default for SunAwareSettings {
@@ -134,6 +143,7 @@ impl Default for SunAwareSettings {
             max_labels: 4_000_000,
             soc_resolution: 0.005,
             objective: SunAwareObjective::EarliestArrival,
+            refine: true,
         }
     }
 }
@@ -161,6 +171,28 @@ pub struct SearchStats {
     pub label_bytes: usize,
     /// Whether the search ran to its end (false: the label budget stopped it).
     pub complete: bool,
+    /// Nodes of the refining search's corridor (0: no refinement).
+    pub refine_nodes: usize,
+    /// Whether the plan comes from the refining search.
+    pub refined: bool,
+}
+
+impl SearchStats {
+    /// Adds the other search's counters (lattice nodes and flags stay).
+    fn add(&mut self, o: &SearchStats) {
+        for &(b, k) in &o.edges_blocked {
+            match self.edges_blocked.iter_mut().find(|(x, _)| *x == b) {
+                Some(e) => e.1 += k,
+                None => self.edges_blocked.push((b, k)),
+            }
+        }
+        self.labels_created += o.labels_created;
+        self.labels_expanded += o.labels_expanded;
+        self.labels_dominated += o.labels_dominated;
+        self.cut_reserve += o.cut_reserve;
+        self.cut_horizon += o.cut_horizon;
+        self.cut_hours += o.cut_hours;
+    }
 }
 
 /// A route with a schedule.
@@ -269,11 +301,81 @@ pub fn plan_sun_aware<M: StepModel + ?Sized>(
         clock: &clock,
         reserve_soc: setup.pack.params().reserve_soc,
     };
-    let lattice = Lattice::new(planner, settings.block_cells, s_cell, g_cell);
-    let mut search = Search::new(planner, lattice, &walker, settings);
+    let b = settings.block_cells;
+    let coarse_lat = Lattice::new(planner, b, s_cell, g_cell);
+    let mut coarse = search_once(planner, coarse_lat, &walker, settings, None)?;
+    let b2 = (b / 4).max(1);
+    if !settings.refine || b2 == b {
+        return Ok(coarse);
+    }
+    let fine_lat = Lattice::new(planner, b2, s_cell, g_cell);
+    let mask = corridor(&fine_lat, &coarse.route, 2 * b);
+    let refine_nodes = mask.iter().filter(|&&m| m).count();
+    let refined = search_once(planner, fine_lat, &walker, settings, Some(mask));
+    let mut out = match refined {
+        Ok(mut fine) if better(&fine, &coarse, settings.objective) => {
+            fine.stats.refined = true;
+            fine.stats.add(&coarse.stats);
+            fine
+        }
+        Ok(fine) => {
+            coarse.stats.add(&fine.stats);
+            coarse
+        }
+        Err(SunAwareError::NoPlan { stats, .. }) => {
+            coarse.stats.add(&stats);
+            coarse
+        }
+        Err(e) => return Err(e),
+    };
+    out.stats.refine_nodes = refine_nodes;
+    Ok(out)
+}
+
+/// One search on `lat` (only the `allowed` nodes, when given).
+fn search_once<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    lat: Lattice,
+    walker: &Walker<'_, '_>,
+    settings: &SunAwareSettings,
+    allowed: Option<Vec<bool>>,
+) -> Result<SunAwarePlan, SunAwareError> {
+    let mut search = Search::new(planner, lat, walker, settings);
+    search.allowed = allowed;
     search.reachable()?;
     let found = search.run(walker.start()?)?;
     search.finish(found)
+}
+
+/// Whether plan `a` beats plan `b` on the objective.
+fn better(a: &SunAwarePlan, b: &SunAwarePlan, objective: SunAwareObjective) -> bool {
+    match objective {
+        SunAwareObjective::EarliestArrival => {
+            (a.arrival_s, -a.final_soc) < (b.arrival_s, -b.final_soc)
+        }
+        SunAwareObjective::MostCharge => (a.final_soc, -a.arrival_s) > (b.final_soc, -b.arrival_s),
+    }
+}
+
+/// The nodes of `lat` within `radius` fine cells (Chebyshev) of a cell of `route`.
+fn corridor(lat: &Lattice, route: &Route, radius: usize) -> Vec<bool> {
+    let (nc, nr) = (lat.nc, lat.nr);
+    let r = radius.div_ceil(lat.b) as i64;
+    let mut mark = vec![false; nc * nr];
+    for p in &route.profile {
+        let i = (p.col as f64 - lat.c0 as f64) / lat.b as f64;
+        let j = (p.row as f64 - lat.r0 as f64) / lat.b as f64;
+        let (i, j) = (i.round() as i64, j.round() as i64);
+        for dj in -r..=r {
+            for di in -r..=r {
+                let (a, c) = (i + di, j + dj);
+                if a >= 0 && c >= 0 && (a as usize) < nc && (c as usize) < nr {
+                    mark[c as usize * nc + a as usize] = true;
+                }
+            }
+        }
+    }
+    mark
 }
 
 fn setting(name: &'static str, value: String, expected: &'static str) -> SunAwareError {
@@ -445,6 +547,8 @@ struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
     heap: BinaryHeap<Reverse<(u64, u32)>>,
     /// Panel output of waits: (arrival edge, node, step after the bucket) → per step.
     wait_cache: std::collections::HashMap<(u32, u32, u32), std::rc::Rc<[f64]>>,
+    /// The nodes the search may use (None: all).
+    allowed: Option<Vec<bool>>,
     stats: SearchStats,
 }
 
@@ -482,6 +586,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             buckets,
             heap: BinaryHeap::new(),
             wait_cache: Default::default(),
+            allowed: None,
             stats: SearchStats {
                 nodes: lat.nodes(),
                 label_bytes: std::mem::size_of::<Label>(),
@@ -523,10 +628,19 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         Ok(out.into_boxed_slice())
     }
 
+    /// The node the edge in `slot` leads to, if it is inside the lattice and allowed.
+    fn target(&self, node: usize, slot: u8) -> Option<usize> {
+        let t = self.lat.target(node, slot)?;
+        match &self.allowed {
+            Some(a) if t < a.len() && !a[t] => None,
+            _ => Some(t),
+        }
+    }
+
     /// Makes the edge in `slot` out of `node` (once); its index, or None when the slot
     /// has no edge.
     fn edge(&mut self, node: usize, slot: u8) -> Option<usize> {
-        let target = self.lat.target(node, slot)?;
+        let target = self.target(node, slot)?;
         let idx = node * SLOTS + slot as usize;
         if self.edges[idx].is_none() {
             let e = self.fine_path(self.lat.cell(node), self.lat.cell(target));
@@ -550,7 +664,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                 let ok = self
                     .edge(u, slot)
                     .is_some_and(|e| matches!(self.edges[e], Some(Ok(_))));
-                if let (true, Some(v)) = (ok, self.lat.target(u, slot)) {
+                if let (true, Some(v)) = (ok, self.target(u, slot)) {
                     if !seen[v] {
                         seen[v] = true;
                         if v != self.lat.goal() {
@@ -737,7 +851,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         // Drive along each edge.
         let node = l.node as usize;
         for slot in 0..SLOTS as u8 {
-            let Some(target) = self.lat.target(node, slot) else {
+            let Some(target) = self.target(node, slot) else {
                 continue;
             };
             if l.walk.t_s + self.h[target] > horizon {
