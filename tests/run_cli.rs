@@ -213,3 +213,75 @@ fn an_unplannable_route_is_infeasible_for_tilt() {
         );
     }
 }
+
+/// The survey mission from base camp straight to the far station (no cairn, no sites),
+/// with a two-day deadline: the shape `--planner sun-aware` plans.
+fn direct_mission(dir: &std::path::Path) -> PathBuf {
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let text = std::fs::read_to_string(mission()).unwrap();
+    let terrain = root.join("terrains/vardholm_plateau.tif");
+    let mut keep = Vec::new();
+    let mut skip = 0;
+    for line in text.lines() {
+        if line.starts_with("[[route.sites]]") {
+            skip = 5;
+        }
+        if skip > 0 {
+            skip -= 1;
+            continue;
+        }
+        if line.starts_with("waypoints_m") {
+            continue;
+        }
+        keep.push(match line {
+            l if l.starts_with("file = ") => format!("file = {:?}", terrain.display().to_string()),
+            l if l.starts_with("deadline_days") => "deadline_days = 2.0".to_string(),
+            l => l.to_string(),
+        });
+    }
+    let path = dir.join("direct.toml");
+    std::fs::write(&path, keep.join("\n")).unwrap();
+    path
+}
+
+/// `--planner sun-aware`: the spring run plans, replays and prints both planners'
+/// verdicts side by side, and writes the season's sun-aware route.
+#[test]
+fn sun_aware_planner_runs_beside_the_fixed_route() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(direct_mission(dir.path()))
+        .args(["--planner", "sun-aware", "--season", "spring", "--out"])
+        .arg(dir.path().join("out"))
+        .output()
+        .unwrap();
+    let text =
+        String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{text}");
+    assert!(text.contains("fixed: FEASIBLE"), "{text}");
+    assert!(text.contains("sun-aware: FEASIBLE"), "{text}");
+    assert!(dir
+        .path()
+        .join("out/route-sun-aware-spring-equinox.geojson")
+        .is_file());
+}
+
+/// `--planner sun-aware` refuses waypoints and sites with a message naming the fix.
+#[test]
+fn sun_aware_planner_refuses_waypoints_and_sites() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(mission())
+        .args(["--planner", "sun-aware", "--out"])
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("start to goal only"), "{err}");
+    assert!(err.contains("--planner fixed"), "{err}");
+}

@@ -42,6 +42,20 @@ pub struct RunArgs {
     /// No progress display.
     #[arg(long, short = 'q')]
     quiet: bool,
+    /// `fixed`: the A* route driven by the mission's policy. `sun-aware`: per season, a
+    /// route and a schedule of holds from a time-dependent search that keeps the reserve
+    /// (start and goal only; the fixed route's verdicts are printed beside it).
+    #[arg(long, value_enum, default_value_t = PlannerKind::Fixed)]
+    planner: PlannerKind,
+}
+
+/// Which planner `run` uses.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum PlannerKind {
+    /// The fixed route with the mission's policy.
+    Fixed,
+    /// Route and schedule from the sun-aware search.
+    SunAware,
 }
 
 /// Reads and checks the mission file, listing every problem on failure.
@@ -59,7 +73,7 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
 }
 
 pub fn run(a: RunArgs) -> Result<(), Error> {
-    let feasible = run_mission(&a.mission, &a.out, &a.season, a.quiet)?;
+    let feasible = run_with(&a)?;
     if a.fail_on_infeasible && !feasible {
         std::process::exit(1);
     }
@@ -73,14 +87,21 @@ pub fn run_mission(
     only: &[String],
     quiet: bool,
 ) -> Result<bool, Error> {
-    let a = RunArgs {
+    run_with(&RunArgs {
         mission: mission.to_path_buf(),
         out: out.to_path_buf(),
         season: only.to_vec(),
         fail_on_infeasible: false,
         quiet,
-    };
+        planner: PlannerKind::Fixed,
+    })
+}
+
+fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let m = load_mission(&a.mission)?;
+    if a.planner == PlannerKind::SunAware {
+        check_sun_aware(&m)?;
+    }
     std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
         path: a.out.clone(),
         source,
@@ -91,7 +112,7 @@ pub fn run_mission(
     let seasons = select_seasons(&m, &a.season)?;
     let planned = match prepare::plan(&m, &ground)? {
         Ok(p) => p,
-        Err(e) => return unplannable(&a, &m, &seasons, &e),
+        Err(e) => return unplannable(a, &m, &seasons, &e),
     };
     let route = &planned.route;
     if !a.quiet {
@@ -112,6 +133,10 @@ pub fn run_mission(
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     let model = RoverStepModel::new(&m.rover);
     let planner = ground.planner(&m, &model);
+    let results = match a.planner {
+        PlannerKind::Fixed => results,
+        PlannerKind::SunAware => sun_aware(&a.out, &m, &planner, &setup, &seasons, results)?,
+    };
     write_outputs(
         mission_dir,
         &a.out,
@@ -123,6 +148,73 @@ pub fn run_mission(
     )?;
     print_verdicts(&m, &results, &a.out);
     Ok(results.iter().all(|r| r.summary.feasible))
+}
+
+/// `--planner sun-aware` needs a mission from start to goal (checked before any work).
+fn check_sun_aware(m: &Mission) -> Result<(), Error> {
+    if m.route.waypoints.is_empty() && m.route.sites.is_empty() {
+        return Ok(());
+    }
+    Err(Error::Usage(format!(
+        "{}: --planner sun-aware plans from start to goal only, and the mission has {} \
+         waypoint(s) and {} site(s). Fix: remove them from [route] or use --planner fixed",
+        m.site.name,
+        m.route.waypoints.len(),
+        m.route.sites.len()
+    )))
+}
+
+/// `--planner sun-aware`: plans and replays every season, writes each season's route,
+/// prints the fixed route's verdicts beside the sun-aware ones; returns the sun-aware
+/// results (a season without a plan keeps the fixed route's).
+fn sun_aware(
+    out: &Path,
+    m: &Mission,
+    planner: &Planner<'_, RoverStepModel<'_>>,
+    setup: &sunward::mission::sim::SimSetup<'_>,
+    seasons: &[Season],
+    fixed: Vec<SeasonResult>,
+) -> Result<Vec<SeasonResult>, Error> {
+    use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareSettings};
+    let (start, goal) = (&m.route.start.point, &m.route.goal.point);
+    let settings = SunAwareSettings::default();
+    let planned = run_seasons_sun_aware(planner, setup, seasons, start, goal, &settings)
+        .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+    crate::say!(
+        "{}: fixed route and sun-aware plan side by side",
+        m.site.name
+    );
+    for (f, s) in fixed.iter().zip(&planned) {
+        let verdict = |r: &SeasonResult| {
+            let v = if r.summary.feasible {
+                "FEASIBLE"
+            } else {
+                "INFEASIBLE"
+            };
+            format!("{v} (min SOC {:.1} %)", 100.0 * r.summary.min_soc)
+        };
+        let plan = match &s.plan {
+            Ok(p) => {
+                let held = p.waiting_s() / 3600.0;
+                let rs = route_summary_json(&p.route, planner.objective, &m.rover, &planner.limits);
+                let gj = serde_json::to_string(&route_geojson(&p.route, &rs))
+                    .expect("JSON values serialise");
+                let name = format!("route-sun-aware-{}.geojson", slug(&f.season.name));
+                write_atomic(&out.join(&name), |w| w.write_all(gj.as_bytes()))?;
+                format!(
+                    "{}, {:.0} m, {} hold(s), {held:.1} h not driving, arrival after {:.1} h ({name})",
+                    verdict(&s.result),
+                    p.route.summary.length_m,
+                    p.holds.len(),
+                    p.arrival_s / 3600.0
+                )
+            }
+            Err(e) => format!("{e}; the fixed route's run is reported"),
+        };
+        crate::say!("  {:<18} fixed: {}", f.season.name, verdict(f));
+        crate::say!("  {:<18} sun-aware: {plan}", "");
+    }
+    Ok(planned.into_iter().map(|s| s.result).collect())
 }
 
 fn slug(name: &str) -> String {

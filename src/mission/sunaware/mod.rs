@@ -91,8 +91,11 @@ use std::collections::BinaryHeap;
 
 use chrono::{DateTime, Utc};
 
-use crate::mission::ledger::Ledger;
-use crate::mission::sim::{EndCondition, Hold, SimError, SimSetup};
+use crate::mission::ledger::{daily_budgets, Ledger};
+use crate::mission::resolve::Season;
+use crate::mission::runner::{season_start, SeasonResult};
+use crate::mission::sim::{simulate, EndCondition, Hold, SimError, SimSetup};
+use crate::mission::verdict::summarize;
 use crate::plan::astar::DIRECTIONS;
 use crate::plan::route::{locate, route_along};
 use crate::plan::{Blocked, PlanError, Planner, Route, RoutePoint, StepModel};
@@ -215,6 +218,12 @@ pub struct SunAwarePlan {
 }
 
 impl SunAwarePlan {
+    /// Seconds from the start to the arrival not spent driving (holds, and the ends of
+    /// the simulation steps in which a hold begins).
+    pub fn waiting_s(&self) -> f64 {
+        (self.arrival_s - self.route.summary.duration_s).max(0.0)
+    }
+
     /// The setup that replays this plan with [`crate::mission::sim::simulate`]:
     /// `template` with this route and holds, no payload stops, state-of-charge
     /// thresholds at zero (the plan keeps the reserve) and the run ending at arrival.
@@ -330,6 +339,67 @@ pub fn plan_sun_aware<M: StepModel + ?Sized>(
     };
     out.stats.refine_nodes = refine_nodes;
     Ok(out)
+}
+
+/// One season planned sun-aware: the plan (or why there is none) and the season's
+/// result, the plan's replay by the simulation, or the fixed route's run of `template`
+/// when there is no plan.
+#[derive(Debug, Clone)]
+pub struct SunAwareSeason {
+    /// The plan, or why there is none.
+    pub plan: Result<SunAwarePlan, SunAwareError>,
+    /// The season's verdict and run.
+    pub result: SeasonResult,
+}
+
+/// Plans every season sun-aware from its own start (the plan depends on the date) and
+/// replays each plan with [`crate::mission::sim::simulate`]; a season without a plan
+/// keeps the fixed route's run of `template`. In parallel, results in the seasons' order.
+pub fn run_seasons_sun_aware<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    template: &SimSetup<'_>,
+    seasons: &[Season],
+    start: &RoutePoint,
+    goal: &RoutePoint,
+    settings: &SunAwareSettings,
+) -> Result<Vec<SunAwareSeason>, SimError> {
+    use rayon::prelude::*;
+    seasons
+        .par_iter()
+        .map(|season| {
+            let t0 = season_start(season.date, template.utc_offset_s, template.start_local_h);
+            let plan = plan_sun_aware(planner, template, start, goal, t0, settings);
+            let result = match &plan {
+                Ok(p) => season_result(&p.replay_setup(template), season, t0)?,
+                Err(_) => season_result(template, season, t0)?,
+            };
+            Ok(SunAwareSeason { plan, result })
+        })
+        .collect()
+}
+
+/// Simulates `setup` for `season` from `t0` with its verdict and daily budgets.
+fn season_result(
+    setup: &SimSetup<'_>,
+    season: &Season,
+    t0: DateTime<Utc>,
+) -> Result<SeasonResult, SimError> {
+    let run = simulate(setup, t0)?;
+    let reserve = setup.pack.params().reserve_soc;
+    let length = setup.route.summary.length_m;
+    let summary = summarize(&season.name, season.date, &run, reserve, length);
+    let days = daily_budgets(
+        &run.samples,
+        setup.step_s,
+        setup.utc_offset_s,
+        setup.initial_soc,
+    );
+    Ok(SeasonResult {
+        season: season.clone(),
+        run,
+        summary,
+        days,
+    })
 }
 
 /// One search on `lat` (only the `allowed` nodes, when given).
@@ -966,11 +1036,13 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             bound,
             format!(
                 "{what} ({} moves ran below the reserve, {} could not arrive before the \
-                 deadline of {:.1} h, {} labels expanded); a larger battery or panels, an \
-                 earlier start or a later deadline may help",
+                 deadline of {:.1} h, {} drives fell outside the driving hours, {} labels \
+                 expanded); a larger battery or panels, an earlier start, a later deadline \
+                 or longer driving hours may help",
                 st.cut_reserve,
                 st.cut_horizon,
                 self.walker.clock.horizon_s() / 3600.0,
+                st.cut_hours,
                 st.labels_expanded
             ),
         )
