@@ -29,10 +29,11 @@ const CELL_M: f64 = 10.0;
 
 /// A valley running east-west: a bench in the north (z = 24 m, rows 0..24), a bank
 /// down to the floor (11° slope, rows 24..36), the floor (z = 0, rows 36..44), a wall
-/// too steep to drive (rows 44..52) and the ridge top (z = 160 m) in the south. At 60° N
-/// near the equinox the noon sun stands about 30° high, while the ridge rises 53° above
-/// the middle of the floor: the floor lies in the ridge's shadow all day, the bench is lit
-/// from mid-morning to mid-afternoon.
+/// too steep to drive (rows 44..52, reaching 160 m at row 51) and the ridge top
+/// (z = 160 m) in the south. At 60° N near the equinox the noon sun stands about 30° high,
+/// while the ridge rises atan(160 / 110) = 55.5° above the middle of the floor (row 40)
+/// and atan(136 / 270) = 26.7° above the bench's edge (row 24): the floor lies in the
+/// ridge's shadow all day, the top of the bank is lit around noon.
 fn valley() -> Dem {
     let (w, h) = (240, 64);
     let z = |r: usize| -> f32 {
@@ -246,6 +247,29 @@ fn valley_shadow_strands_the_fixed_route_but_not_the_sun_aware_plan() {
     let h = dem.height();
     let (from, to) = (at("start", 8, 40, h), at("goal", 232, 40, h));
     let fixed = plan_route(&p, &[from.clone(), to.clone()]).unwrap();
+    // The scene as the docs say, against plain trigonometry and the noon-elevation rule
+    // 90° − latitude + declination (declination ≈ 0° at the equinox; Duffie and
+    // Beckman, Solar Engineering of Thermal Processes, 4th ed. 2013, section 1.6, from
+    // memory).
+    let south = std::f64::consts::PI;
+    let floor = horizons.angle_at(120, 40, south).to_degrees();
+    let edge = horizons.angle_at(120, 24, south).to_degrees();
+    assert!(
+        (floor - (160f64 / 110.0).atan().to_degrees()).abs() < 1.0,
+        "{floor}"
+    );
+    assert!(
+        (edge - (136f64 / 270.0).atan().to_degrees()).abs() < 1.0,
+        "{edge}"
+    );
+    let noon = sunward::sun::position::sun_position(
+        start_time() + chrono::Duration::minutes(12 * 60 - 8),
+        &setup(&fixed, &k, None, policy(1.0)).sky.observer,
+        69.0,
+    );
+    let noon_deg = noon.elevation_rad().to_degrees();
+    assert!((noon_deg - 30.0).abs() < 0.5, "{noon_deg}");
+    assert!(floor > noon_deg + 20.0 && edge < noon_deg);
     // The fixed route keeps to the floor.
     assert!(fixed.profile.iter().all(|r| r.row >= 36 && r.row < 44));
     for drive_hours in [DriveHours::Daylight, DriveHours::Always] {
@@ -257,6 +281,9 @@ fn valley_shadow_strands_the_fixed_route_but_not_the_sun_aware_plan() {
                 ..policy(96.0)
             };
             let run = simulate(&setup(&fixed, &k, Some(&horizons), pol), start_time()).unwrap();
+            if let Some(s) = &run.stranded {
+                assert_eq!(s.cause, "light", "{}", s.detail);
+            }
             assert!(
                 run.arrival.is_none() || run.min_soc.0 < k.pack.params().reserve_soc,
                 "fixed route survives with {pol:?}"
@@ -279,6 +306,14 @@ fn valley_shadow_strands_the_fixed_route_but_not_the_sun_aware_plan() {
         plan.stats
     );
     assert!(plan.min_soc >= k.pack.params().reserve_soc);
+    // The reason: it harvests more than the fixed route does before it is stranded.
+    let fixed_run = simulate(&template, start_time()).unwrap();
+    assert!(
+        plan.ledger.generated_wh > 1.5 * fixed_run.ledger.generated_wh,
+        "sun-aware {} Wh, fixed {} Wh",
+        plan.ledger.generated_wh,
+        fixed_run.ledger.generated_wh
+    );
     // It leaves the shadowed floor for the lit upper slope.
     assert!(plan.route.profile.iter().any(|r| r.row < 36));
     check_replay(&plan, &template);

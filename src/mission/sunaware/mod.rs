@@ -67,7 +67,7 @@
 //!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
 //! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
-//! ordinary [`simulate`](crate::mission::sim::simulate) with
+//! ordinary [`simulate`] with
 //! [`Hold`]s reproduces the search's energy (see `tests/mission_sunaware.rs`).
 //!
 //! # Bounds
@@ -612,7 +612,8 @@ struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
     /// Lower bound of the driving time to the goal, per node (goal last).
     h: Vec<f64>,
     labels: Vec<Label>,
-    fronts: Vec<Vec<u32>>,
+    /// Pareto fronts by node · buckets + bucket (only the pairs reached take memory).
+    fronts: std::collections::HashMap<usize, Vec<u32>>,
     buckets: usize,
     heap: BinaryHeap<Reverse<(u64, u32)>>,
     /// Panel output of waits: (arrival edge, node, step after the bucket) → per step.
@@ -652,7 +653,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             edges: vec![None; lat.nodes() * SLOTS],
             h,
             labels: Vec::new(),
-            fronts: Vec::new(),
+            fronts: Default::default(),
             buckets,
             heap: BinaryHeap::new(),
             wait_cache: Default::default(),
@@ -822,7 +823,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         let key = l.node as usize * self.buckets + b;
         let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
         let labels = &mut self.labels;
-        let front = &mut self.fronts[key];
+        let front = self.fronts.entry(key).or_default();
         let eps = self.settings.soc_resolution;
         if front.iter().any(|&i| {
             let o = &labels[i as usize];
@@ -855,7 +856,6 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
 
     /// Runs the search; returns the label of the chosen arrival.
     fn run(&mut self, w0: Walk) -> Result<u32, SunAwareError> {
-        self.fronts = vec![Vec::new(); self.lat.nodes() * self.buckets];
         let s = self.lat.node_of(self.lat.start_cell);
         self.admit(Label {
             walk: w0,
