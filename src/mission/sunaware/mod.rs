@@ -67,8 +67,8 @@
 //!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
 //! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
-//! ordinary [`simulate`] with
-//! [`Hold`]s reproduces the search's energy (see `tests/mission_sunaware.rs`).
+//! ordinary [`simulate`] with [`Hold`]s reproduces the search's energy to the last few
+//! bits (see `tests/mission_sunaware.rs`).
 //!
 //! # Bounds
 //! The time horizon (the policy's deadline) and a label budget (`max_labels`; memory is
@@ -78,8 +78,14 @@
 //! at the reserve everywhere, or labels that could not arrive before the horizon.
 //!
 //! # Limits
-//! One goal, no payload stops; the replay policy drives whenever the schedule says
-//! (its state-of-charge thresholds are set to zero: the plan itself keeps the reserve).
+//! One goal, no waypoints and no payload stops; the lattice uses the 8 neighbours (not
+//! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
+//! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
+//! reserve). Besides the labels, memory goes to the lattice edges computed (about 56
+//! bytes per fine step of each edge, all edges of the reachable lattice: the reachability
+//! check builds them) and to the cached panel output of waits (one value per simulation
+//! step of each (arrival edge, bucket) waited in): on large grids keep `block_cells`
+//! above 1. The weather is the simulation's: clear sky scaled by the monthly clearness.
 //!
 //! # Units
 //! Seconds, watt-hours, fractions (state of charge), metres.
@@ -1075,8 +1081,12 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             }
         }
         let route = route_along(self.planner, &cells, self.stats.labels_expanded);
-        let (walk, ledger, arrival_s) =
-            walk_plan(self.walker, &route, &holds).expect("the found plan replays");
+        let (walk, ledger, arrival_s) = walk_plan(self.walker, &route, &holds).map_err(|h| {
+            SimError::Stage(format!(
+                "the sun-aware plan did not replay through the step arithmetic ({h:?}); \
+                 please report this mission to the sunward developers"
+            ))
+        })?;
         let stats = std::mem::take(&mut self.stats);
         Ok(SunAwarePlan {
             route,
