@@ -307,6 +307,24 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     write_atomic(&out.join("route_map.png"), |wr| {
         png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
     })?;
+    let grey_rgb: Vec<u8> = grey.iter().flat_map(|&g| [g, g, g]).collect();
+    let mut relief = Vec::new();
+    png::write_rgb8(&mut relief, dem.width(), dem.height(), &grey_rgb).map_err(|source| {
+        Error::Output {
+            path: out.join("route_map.svg"),
+            source,
+        }
+    })?;
+    let svg = sunward::report::map::route_map_svg(
+        &relief,
+        dem.width(),
+        dem.height(),
+        route,
+        &sites,
+        scale,
+        &format!("{}: route coloured by step energy", m.site.name),
+    );
+    write_atomic(&out.join("route_map.svg"), |w| w.write_all(svg.as_bytes()))?;
     let offset = m.site.utc_offset.local_minus_utc();
     let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
     let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
@@ -369,6 +387,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg, report.html", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png/svg, season-*.png/svg, seasons.png/svg, report.html", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }
