@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use clap::Args;
 
 use sunward::mission::prepare::{self, select_seasons, sim_setup, Ground, Models};
-use sunward::mission::resolve::{Mission, Season};
+use sunward::mission::resolve::{Mission, Season, Sky};
 use sunward::mission::runner::{run_seasons_with, SeasonResult};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
@@ -58,6 +58,22 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
     })
 }
 
+/// The mission's checked models, with the weather file read when the mission has one.
+pub fn load_models(m: &Mission) -> Result<Models, Error> {
+    let text = match &m.weather.sky {
+        Sky::Csv { path } => {
+            Some(
+                std::fs::read_to_string(path).map_err(|source| Error::Input {
+                    path: path.clone(),
+                    source,
+                })?,
+            )
+        }
+        _ => None,
+    };
+    Models::with_weather(m, text.as_deref())
+}
+
 pub fn run(a: RunArgs) -> Result<(), Error> {
     let feasible = run_mission(&a.mission, &a.out, &a.season, a.quiet)?;
     if a.fail_on_infeasible && !feasible {
@@ -86,9 +102,10 @@ pub fn run_mission(
         source,
     })?;
     super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
-    let models = Models::new(&m)?;
+    let models = load_models(&m)?;
     let ground = Ground::load(&m)?;
     let seasons = select_seasons(&m, &a.season)?;
+    prepare::check_weather_span(&m, &models, &seasons)?;
     let planned = match prepare::plan(&m, &ground)? {
         Ok(p) => p,
         Err(e) => return unplannable(&a, &m, &seasons, &e),
@@ -180,11 +197,18 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
                 "NREL SPA".into(),
                 "Reda and Andreas, NREL/TP-560-34302",
             ),
-            a(
-                "irradiance",
-                "clear sky, Ineichen-Perez".into(),
-                "Ineichen and Perez, Solar Energy 73(3), 2002",
-            ),
+            match &m.weather.sky {
+                Sky::Csv { path } => a(
+                    "irradiance",
+                    format!("measured, {}", path.display()),
+                    "weather file; linear between records, beam closed on GHI",
+                ),
+                _ => a(
+                    "irradiance",
+                    "clear sky, Ineichen-Perez".into(),
+                    "Ineichen and Perez, Solar Energy 73(3), 2002",
+                ),
+            },
             a(
                 "panel plane",
                 format!("{:?}", m.weather.sky_model),

@@ -1,0 +1,1 @@
+//! Daily clear-sky index draws for the weather Monte Carlo.
