@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission::{spec, resolve} ─► mission::sim ─► report / study   (study planned)
+//!          mission::{spec, resolve} ─► mission::sim ─► report / study
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -46,6 +46,8 @@
 //! - [`sun::shading`]: terrain horizon and sky-view factor applied to irradiance.
 //! - [`sun::panel`]: PV power with cell temperature and mounts.
 //! - [`sun::series`]: clear-sky time series.
+//! - [`sun::measured`]: a measured weather record's irradiance at any instant.
+//! - [`sun::clearness_mc`]: seeded daily clear-sky index draws (Beta, Marsaglia-Tsang).
 //! - [`battery::pack`]: Rint pack model with charge limits and exact bookkeeping.
 //! - [`battery::chemistry`]: LFP and NMC presets.
 //! - [`battery::thermal`]: lumped thermal node with thermostat heater.
@@ -56,6 +58,7 @@
 //! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
+//! - [`study::montecarlo`]: the weather Monte Carlo (N sampled runs per season).
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
@@ -71,6 +74,7 @@ pub mod mission;
 pub mod plan;
 pub mod progress;
 pub mod report;
+pub mod study;
 pub mod sun;
 pub mod terrain;
 pub mod units;

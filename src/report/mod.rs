@@ -5,5 +5,6 @@ pub mod csv;
 pub mod html;
 pub mod json;
 pub mod map;
+pub mod montecarlo_plot;
 pub mod plot;
 pub mod season_plot;
