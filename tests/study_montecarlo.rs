@@ -288,3 +288,200 @@ fn a_vanishing_spread_reproduces_the_deterministic_verdict() {
         }
     }
 }
+
+// ---------------------------------------------------------------------------------------
+// The command line.
+
+use std::path::{Path, PathBuf};
+
+use assert_cmd::Command;
+use serde_json::Value;
+
+fn repo(p: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join(p)
+}
+
+/// The survey mission under monthly clearness with a daily spread (`sd_line` replaces
+/// the clear-sky line).
+fn clearness_mission(dir: &Path, sd_line: &str) -> PathBuf {
+    let text = std::fs::read_to_string(repo("missions/vardholm_survey.toml")).unwrap();
+    let terrain = repo("terrains/vardholm_plateau.tif");
+    let text = text
+        .replace(
+            "\"../terrains/vardholm_plateau.tif\"",
+            &format!("{:?}", terrain.display().to_string()),
+        )
+        .replace(
+            "sky = \"clear_sky\"",
+            &format!(
+                "sky = \"clearness\"\nclearness = [0.3, 0.4, 0.5, 0.55, 0.6, 0.6, 0.6, 0.55, \
+                 0.5, 0.45, 0.35, 0.3]\n{sd_line}"
+            ),
+        );
+    let path = dir.join("mission.toml");
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+fn run_cli(mission: &Path, out: &Path, extra: &[&str]) -> std::process::Output {
+    Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(mission)
+        .arg("--out")
+        .arg(out)
+        .args(["--season", "summer"])
+        .args(extra)
+        .output()
+        .unwrap()
+}
+
+fn summary(out: &Path) -> Value {
+    serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap()
+}
+
+#[test]
+fn run_monte_carlo_writes_its_summary_plot_and_report_section() {
+    let dir = tempfile::tempdir().unwrap();
+    let mission = clearness_mission(dir.path(), "clearness_sd = 0.2");
+    let (a, b) = (dir.path().join("a"), dir.path().join("b"));
+    let first = run_cli(&mission, &a, &["--monte-carlo", "4", "--seed", "9"]);
+    assert!(
+        first.status.success(),
+        "{}",
+        String::from_utf8_lossy(&first.stderr)
+    );
+    assert!(String::from_utf8_lossy(&first.stdout).contains("seed 9"));
+    let again = run_cli(&mission, &b, &["-q", "--monte-carlo", "4", "--seed", "9"]);
+    assert!(again.status.success());
+    let (va, vb) = (summary(&a), summary(&b));
+    // Existing keys stay as they are; monte_carlo is added.
+    for key in [
+        "schema_version",
+        "feasible",
+        "seasons",
+        "inputs",
+        "cautions",
+    ] {
+        assert!(va.get(key).is_some(), "{key}");
+    }
+    assert!(va["seasons"][0].get("min_soc").is_some());
+    let mc = &va["monte_carlo"];
+    assert_eq!(mc["runs"], 4);
+    assert_eq!(mc["seed"], 9);
+    assert!(mc["distribution"].as_str().unwrap().starts_with("beta"));
+    assert!(mc["quantile_rule"].as_str().unwrap().contains("type 7"));
+    let s = &mc["seasons"][0];
+    assert_eq!(s["name"], va["seasons"][0]["name"]);
+    let socs: Vec<f64> = s["min_socs"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_f64().unwrap())
+        .collect();
+    assert_eq!(socs.len(), 4);
+    let p = s["probability_complete"].as_f64().unwrap();
+    assert!((0.0..=1.0).contains(&p));
+    let (q05, q50, q95) = (
+        s["min_soc_q05"].as_f64().unwrap(),
+        s["min_soc_q50"].as_f64().unwrap(),
+        s["min_soc_q95"].as_f64().unwrap(),
+    );
+    let lo = socs.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = socs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+    assert!(lo <= q05 && q05 <= q50 && q50 <= q95 && q95 <= hi, "{s}");
+    // Same seed, same Monte Carlo result, from the command line too.
+    assert_eq!(va["monte_carlo"], vb["monte_carlo"]);
+    for f in ["montecarlo.png", "montecarlo.svg"] {
+        assert!(std::fs::metadata(a.join(f)).unwrap().len() > 1000, "{f}");
+    }
+    let html = std::fs::read_to_string(a.join("report.html")).unwrap();
+    assert!(html.contains("sampled weather runs"));
+    // Without --monte-carlo there is no monte_carlo key and no plot.
+    let c = dir.path().join("c");
+    assert!(run_cli(&mission, &c, &["-q"]).status.success());
+    assert!(summary(&c).get("monte_carlo").is_none());
+    assert!(!c.join("montecarlo.png").exists());
+}
+
+#[test]
+fn monte_carlo_needs_the_monthly_statistics() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(repo("missions/vardholm_survey.toml")).unwrap();
+    let terrain = repo("terrains/vardholm_plateau.tif");
+    let text = text.replace(
+        "\"../terrains/vardholm_plateau.tif\"",
+        &format!("{:?}", terrain.display().to_string()),
+    );
+    let mission = dir.path().join("clear.toml");
+    std::fs::write(&mission, text).unwrap();
+    let out = run_cli(&mission, &dir.path().join("o"), &["--monte-carlo", "3"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("clearness_sd") && err.contains("Fix:"),
+        "{err}"
+    );
+}
+
+#[test]
+fn check_explains_a_spread_too_wide_for_a_beta_law() {
+    let dir = tempfile::tempdir().unwrap();
+    // December's mean is 0.3: mean·(1 − mean) = 0.21, so sd must stay below 0.458.
+    let mission = clearness_mission(dir.path(), "clearness_sd = 0.47");
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(&mission)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("weather.clearness_sd"), "{err}");
+    assert!(err.contains("Beta") && err.contains("below 0.458"), "{err}");
+    let ok = clearness_mission(
+        dir.path(),
+        "clearness_sd = [0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1]",
+    );
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(&ok)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
+#[test]
+fn clearness_sd_only_applies_to_the_clearness_sky() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(repo("missions/vardholm_survey.toml")).unwrap();
+    let terrain = repo("terrains/vardholm_plateau.tif");
+    let text = text
+        .replace(
+            "\"../terrains/vardholm_plateau.tif\"",
+            &format!("{:?}", terrain.display().to_string()),
+        )
+        .replace(
+            "sky = \"clear_sky\"",
+            "sky = \"clear_sky\"\nclearness_sd = 0.1",
+        );
+    let mission = dir.path().join("m.toml");
+    std::fs::write(&mission, text).unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(&mission)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("weather.clearness_sd") && err.contains("does not apply"),
+        "{err}"
+    );
+}
