@@ -1,6 +1,6 @@
 //! sunward — energy and mission feasibility planning for solar-powered mobile robots.
 //!
-//! The data flow, in pipeline order (modules marked *planned* are not built yet):
+//! The data flow, in pipeline order:
 //!
 //! ```text
 //! DEM file ──► terrain::io (GeoTIFF / 16-bit PNG / ESRI ASCII → Grid<f32>, NaN = no-data)
@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission::{spec, resolve} ─► mission::sim ─► report / study
+//!          mission::{spec, resolve} ─► mission::prepare ─► mission::sim ─► report / study
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -58,8 +58,15 @@
 //! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
+//! - [`mission::prepare`]: from a checked mission to a simulation setup.
+//! - [`mission::runner`]: the seasons of a mission in parallel.
+//! - [`study::vary`]: the keys and values a trade study varies.
+//! - [`study::sweep`]: sweeps over mission keys, shards.
+//! - [`study::size`]: battery and panel sizing by bisection.
 //! - [`study::montecarlo`]: the weather Monte Carlo (N sampled runs per season).
 //! - [`report`]: output serialisers and the one atomic writer.
+//! - [`report::sweep`]: sweep.csv and the merging of shards.
+//! - [`report::heatmap`]: a sweep's heatmap.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
 //! The numeric core does no I/O and prints nothing; the CLI in `src/main.rs` and

@@ -258,8 +258,8 @@ impl Models {
             }
             (Sky::Csv { path }, None) => {
                 return Err(Error::Usage(format!(
-                    "{}: the weather file was not read. Fix: read it and pass its text to \
-                     Models::with_weather",
+                    "{}: this command does not read weather files (`run` and `check` do). \
+                     Fix: use [weather] sky = \"clearness\" or \"clear_sky\" here",
                     path.display()
                 )))
             }
