@@ -387,4 +387,56 @@ fn a_weather_file_that_misses_the_season_is_a_clear_error() {
         assert!(err.contains(want), "missing {want:?} in: {err}");
     }
     assert!(!dir.path().join("out/summary.json").exists());
+    // `check` reads the file too and refuses it for the same reason.
+    let check = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(&mission)
+        .output()
+        .unwrap();
+    assert_eq!(check.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&check.stderr).contains("2027-06-27 09:00"));
+}
+
+/// The file's temp_air_c column becomes the air temperature (linear between records,
+/// naive times at the site's +01:00); without the column the monthly climate stays.
+#[test]
+fn air_temperature_comes_from_the_file_when_it_has_the_column() {
+    use sunward::mission::prepare::Models;
+    let dir = tempfile::tempdir().unwrap();
+    let mut weather = String::from("time,ghi_w_m2,temp_air_c\n");
+    let start = NaiveDate::from_ymd_opt(2027, 6, 20)
+        .unwrap()
+        .and_hms_opt(0, 0, 0)
+        .unwrap();
+    for h in 0..=(24 * 4) {
+        let t = start + Duration::hours(h);
+        weather.push_str(&format!(
+            "{},0,{}\n",
+            t.format("%Y-%m-%d %H:%M"),
+            h as f64 * 0.5
+        ));
+    }
+    let path = csv_mission(dir.path(), &weather, "2027-06-21", 2.0);
+    let text = std::fs::read_to_string(&path).unwrap();
+    let m = sunward::mission::check(&text, dir.path(), &|p: &std::path::Path| p.is_file()).unwrap();
+    let models = Models::with_weather(&m, Some(&weather)).unwrap();
+    // 2027-06-21 12:30 local = 11:30 UTC is 36.5 h after the first record: 18.25 °C.
+    let t = NaiveDate::from_ymd_opt(2027, 6, 21)
+        .unwrap()
+        .and_hms_opt(11, 30, 0)
+        .unwrap()
+        .and_utc();
+    let got = models.ambient.temp_c(t, 3600);
+    assert!((got - 18.25).abs() < 1e-9, "{got}");
+    let plain = weather
+        .lines()
+        .map(|l| l.rsplit_once(',').unwrap().0.to_string() + "\n")
+        .collect::<String>();
+    let models = Models::with_weather(&m, Some(&plain)).unwrap();
+    assert!(matches!(models.ambient, Ambient::Monthly(_)));
+    assert!(
+        Models::new(&m).is_err(),
+        "a csv mission needs the file's text"
+    );
 }

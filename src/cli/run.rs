@@ -361,6 +361,11 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         "start_local_h": m.start_local_h,
         "electronics_heat_share": m.thermal.electronics_heat_share,
     });
+    let mut inputs = inputs;
+    if let Sky::Csv { path } = &m.weather.sky {
+        let label = path.strip_prefix(mission_dir).unwrap_or(path);
+        inputs["weather_file"] = label.display().to_string().into();
+    }
     let mut doc = summary(&m.site.name, results, inputs);
     doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
     let text = summary_json(&doc);
