@@ -21,7 +21,7 @@
 //!   "monte_carlo": {                       only with `run --monte-carlo N`
 //!     "runs", "seed", "distribution", "quantile_rule", "limitation",
 //!     "seasons": [ {                       one object per season, in the seasons' order
-//!       "name", "date", "runs", "seed", "distribution",
+//!       "name", "date", "runs", "seed", "distribution", "quantile_rule",
 //!       "probability_complete",            share of feasible runs (0..1)
 //!       "min_soc_mean", "min_soc_q05", "min_soc_q50", "min_soc_q95",
 //!       "min_socs": [ ... ]                each run's lowest state of charge, run order
@@ -105,6 +105,8 @@ pub struct MonteCarloSeasonJson {
     pub seed: u64,
     /// The daily distribution.
     pub distribution: &'static str,
+    /// How the quantiles are formed.
+    pub quantile_rule: &'static str,
     /// Share of feasible runs.
     pub probability_complete: f64,
     /// Mean of the runs' lowest state of charge.
@@ -140,6 +142,7 @@ pub fn monte_carlo_json(results: &[SeasonMonteCarlo], runs: usize, seed: u64) ->
                 runs: r.draws.len(),
                 seed: r.seed,
                 distribution: DISTRIBUTION,
+                quantile_rule: QUANTILE_RULE,
                 probability_complete: r.probability_complete(),
                 min_soc_mean: r.min_soc_mean(),
                 min_soc_q05: r.min_soc_quantile(0.05),
