@@ -345,6 +345,15 @@ pub fn run_merge(a: MergeArgs) -> Result<(), Error> {
     Ok(())
 }
 
+/// Four significant digits, for sizes found to a tolerance of about 1 %.
+fn round_sig(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let decimals = (3 - v.abs().log10().floor() as i32).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
 pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let m = load_mission(&a.mission)?;
     let text = read_text(&a.mission)?;
@@ -385,15 +394,16 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
                 return Ok(());
             }
             crate::say!(
-                "{}: smallest {} that passes every season: {:.4} {unit} (the mission has {} {unit})",
+                "{}: smallest {} that passes every season: {} {unit} (the mission has {} {unit})",
                 m.site.name,
                 what.key(),
-                s.value,
-                s.mission_value
+                round_sig(s.value),
+                round_sig(s.mission_value)
             );
             match (&s.failing_below, &s.at_failing) {
                 (Some(lo), Some(o)) => crate::say!(
-                    "  {lo:.4} {unit} fails ({:.2} % below): {}: {}",
+                    "  {} {unit} fails ({:.2} % below): {}: {}",
+                    round_sig(*lo),
                     100.0 * (1.0 - lo / s.value),
                     o.binding_season,
                     o.binding_reason

@@ -352,6 +352,9 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     Ok(())
 }
 
+/// Relative shortfall below which a step counts as served (see its use).
+const SHORTFALL_TOLERANCE: f64 = 1e-6;
+
 /// Runs one season from `start`.
 pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimError> {
     check(setup)?;
@@ -528,8 +531,11 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         pack_state = ps.state;
         let losses_wh = ps.loss_resistive_wh + ps.loss_coulombic_wh;
         last_loss_w = losses_wh * 3600.0 / dt;
+        // A shortfall below a millionth of the demand is the pack's round-off (its
+        // fixed-point current solve), not a lack of energy: large packs see it.
+        let short = ps.shortfall_w > SHORTFALL_TOLERANCE * demand_w.max(1.0);
         // Served share of the demand (below 1 only in the step that strands the rover).
-        let served = if ps.shortfall_w > 1e-9 && demand_w > 0.0 {
+        let served = if short && demand_w > 0.0 {
             ((demand_w - ps.shortfall_w) / demand_w).clamp(0.0, 1.0)
         } else {
             1.0
@@ -581,7 +587,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             ambient_c: air_c,
             sun_elevation_deg: sun.apparent_elevation_rad().to_degrees(),
         });
-        if ps.shortfall_w > 1e-9 {
+        if short {
             let (heater, used) = day_window
                 .iter()
                 .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
