@@ -17,7 +17,7 @@
 //!   for shape a ≥ 1, `d = a − 1/3`, `c = 1/√(9d)`; draw a normal x and a uniform u,
 //!   `v = (1 + c x)³`, accept `d·v` when v > 0 and `ln u < x²/2 + d − d v + d ln v`
 //!   (the squeeze `u < 1 − 0.0331 x⁴` first); for a < 1, `Gamma(a) = Gamma(a+1)·u^(1/a)`
-//!   (the paper's section 6).
+//!   (the boost the paper gives for shapes below 1).
 //! - **Normal variates**: Box-Muller (G. E. P. Box and M. E. Muller, Ann. Math. Statist.
 //!   29(2), 610-611, 1958), cosine branch only.
 //! - **Uniforms**: xoshiro256** (D. Blackman and S. Vigna, "Scrambled linear
