@@ -440,3 +440,27 @@ fn air_temperature_comes_from_the_file_when_it_has_the_column() {
         "a csv mission needs the file's text"
     );
 }
+
+/// A per-day clear-sky index overrides the monthly factor on the days it covers, and the
+/// monthly factor (here 1) holds after its end: over two days with the index [0.5] the
+/// energy is half of the first day's clear-sky energy plus all of the second day's (a
+/// linear panel on the isotropic sky, so the energy is linear in the factor).
+#[test]
+fn daily_clearness_overrides_the_month_on_its_days_only() {
+    let rover = Rover::default();
+    let route = parked_route(&rover);
+    let s = stages();
+    let panel = ideal_panel();
+    let energy = |days: f64, daily: Option<&[f64]>| {
+        let mut set = setup(&route, &rover, &s, &panel, None);
+        set.policy.deadline_s = days * 86_400.0;
+        set.sky.clearness_daily = daily;
+        simulate(&set, midnight()).unwrap().ledger.generated_wh
+    };
+    let day0 = energy(1.0, None);
+    let both = energy(2.0, None);
+    let mixed = energy(2.0, Some(&[0.5]));
+    assert!(day0 > 1000.0 && both > 1.9 * day0);
+    let want = 0.5 * day0 + (both - day0);
+    assert!((mixed - want).abs() < 1e-9 * want, "{mixed} vs {want}");
+}
