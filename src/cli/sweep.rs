@@ -20,8 +20,19 @@ pub struct SweepArgs {
     /// The mission file (TOML; `sunward check` validates it).
     mission: PathBuf,
     /// A key and its values, KEY=A:B:STEP (repeat; every combination is a case).
-    #[arg(long, value_name = "KEY=A:B:STEP", required = true)]
+    #[arg(long, value_name = "KEY=A:B:STEP")]
     vary: Vec<String>,
+    /// Battery capacities, Wh: the same as --vary battery.capacity_wh=A:B:STEP.
+    #[arg(long, value_name = "A:B:STEP")]
+    battery_wh: Option<String>,
+    /// Duty of every payload load (every load not in policy.survival_loads): the same as
+    /// --vary payload.duty=A:B:STEP.
+    #[arg(long, value_name = "A:B:STEP")]
+    duty: Option<String>,
+    /// Season start dates, YYYY-MM-DD:YYYY-MM-DD:DAYS: the same as
+    /// --vary seasons.start_date=A:B:STEP.
+    #[arg(long, value_name = "A:B:DAYS")]
+    dates: Option<String>,
     /// Run only the seasons whose name contains this text (repeat for several).
     #[arg(long, value_name = "NAME")]
     season: Vec<String>,
@@ -170,7 +181,23 @@ fn plots(out: &Path, csv_text: &str, title: &str) -> Result<Vec<String>, Error> 
     Ok(names)
 }
 
-pub fn run_sweep(a: SweepArgs) -> Result<(), Error> {
+pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
+    let shorthands = [
+        (a.battery_wh.take(), "battery.capacity_wh"),
+        (a.duty.take(), sunward::study::vary::PAYLOAD_DUTY_KEY),
+        (a.dates.take(), sunward::study::vary::START_DATE_KEY),
+    ];
+    for (range, key) in shorthands.into_iter().rev() {
+        if let Some(r) = range {
+            a.vary.insert(0, format!("{key}={r}"));
+        }
+    }
+    if a.vary.is_empty() {
+        return Err(Error::Usage(
+            "nothing to vary. Fix: give --vary KEY=A:B:STEP (or --battery-wh, --duty, --dates)"
+                .into(),
+        ));
+    }
     let varies: Vec<Vary> = a
         .vary
         .iter()
