@@ -358,6 +358,29 @@ fn run_with_a_weather_file_writes_a_verdict() {
         season["energy_generated_wh"].as_f64().unwrap() > 100.0,
         "{season}"
     );
+    // A sweep of the same mission reads the weather file too, and its one-value case
+    // has the run's verdict.
+    let sw = dir.path().join("sweep");
+    let sweep = Command::cargo_bin("sunward")
+        .unwrap()
+        .args(["sweep", "-q", "--vary", "battery.capacity_wh=2400", "--out"])
+        .arg(&sw)
+        .arg(&mission)
+        .output()
+        .unwrap();
+    assert!(
+        sweep.status.success(),
+        "{}",
+        String::from_utf8_lossy(&sweep.stderr)
+    );
+    let csv = std::fs::read_to_string(sw.join("sweep.csv")).unwrap();
+    let row: Vec<&str> = csv.lines().nth(1).unwrap().split(',').collect();
+    assert_eq!(row[2], season["feasible"].to_string(), "{csv}");
+    let min_soc: f64 = row[5].parse().unwrap();
+    assert!(
+        (min_soc - season["min_soc"].as_f64().unwrap()).abs() < 1e-6,
+        "{csv}"
+    );
 }
 
 #[test]

@@ -125,7 +125,7 @@ fn shards_merged_equal_the_whole_sweep_byte_for_byte() {
 
 fn study<'a>(text: &str, base: &'a Path, only: &[String]) -> Study<'a> {
     static EXISTS: fn(&Path) -> bool = |p: &Path| p.is_file();
-    Study::new(text, base, &EXISTS, only, &sunward::progress::Silent).unwrap()
+    Study::new(text, base, &EXISTS, only, None, &sunward::progress::Silent).unwrap()
 }
 
 /// SplitMix64 (Steele, Lea and Flood, OOPSLA 2014): fixed seeds, repeatable cases.

@@ -96,19 +96,23 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
 }
 
 /// The mission's checked models, with the weather file read when the mission has one.
-pub fn load_models(m: &Mission) -> Result<Models, Error> {
-    let text = match &m.weather.sky {
+/// The text of the mission's weather file, when it has one (`sky = "csv"`).
+pub fn weather_text(m: &Mission) -> Result<Option<String>, Error> {
+    match &m.weather.sky {
         Sky::Csv { path } => {
-            Some(
-                std::fs::read_to_string(path).map_err(|source| Error::Input {
+            std::fs::read_to_string(path)
+                .map(Some)
+                .map_err(|source| Error::Input {
                     path: path.clone(),
                     source,
-                })?,
-            )
+                })
         }
-        _ => None,
-    };
-    Models::with_weather(m, text.as_deref())
+        _ => Ok(None),
+    }
+}
+
+pub fn load_models(m: &Mission) -> Result<Models, Error> {
+    Models::with_weather(m, weather_text(m)?.as_deref())
 }
 
 pub fn run(a: RunArgs) -> Result<(), Error> {

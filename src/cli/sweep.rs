@@ -13,7 +13,7 @@ use sunward::study::vary::{grid_len, Vary};
 use sunward::Error;
 
 use super::progress::Bar;
-use super::run::load_mission;
+use super::run::{load_mission, weather_text};
 
 #[derive(Debug, Args)]
 pub struct SweepArgs {
@@ -230,7 +230,15 @@ pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let study = Study::new(&text, &base, &exists, &a.season, progress)?;
+    let weather = weather_text(&m)?;
+    let study = Study::new(
+        &text,
+        &base,
+        &exists,
+        &a.season,
+        weather.as_deref(),
+        progress,
+    )?;
     // Check each key's ends alone first, so a bad range fails before any case runs.
     for v in &varies {
         for end in [v.values[0], v.values[v.values.len() - 1]] {
@@ -389,7 +397,15 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let study = Study::new(&text, &base, &exists, &a.season, progress)?;
+    let weather = weather_text(&m)?;
+    let study = Study::new(
+        &text,
+        &base,
+        &exists,
+        &a.season,
+        weather.as_deref(),
+        progress,
+    )?;
     let what = match a.what {
         SizeWhat::Battery => What::Battery,
         SizeWhat::Panels => What::Panels,

@@ -282,6 +282,31 @@ impl Models {
     }
 }
 
+impl Models {
+    /// The models of `m`, a variant of the mission these models were made for (a case of
+    /// a trade study): battery, thermal node and site from `m`, the weather record (and
+    /// its air temperature) reused, so the weather file is parsed once per study.
+    pub fn for_variant(&self, m: &Mission) -> Result<Models, Error> {
+        let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
+        let ambient = match (&self.weather, &self.ambient) {
+            (Some(_), Ambient::Series(s)) => Ambient::Series(s.clone()),
+            _ => Ambient::Monthly(m.weather.climate.clone()),
+        };
+        Ok(Models {
+            pack: Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?,
+            thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?,
+            ambient,
+            observer: Observer::new(
+                m.site.latitude_rad,
+                m.site.longitude_rad,
+                m.site.elevation_m,
+            )
+            .map_err(|e| stage(e.to_string()))?,
+            weather: self.weather.clone(),
+        })
+    }
+}
+
 /// Parses the weather file's text (naive times at the site's UTC offset).
 fn parse_weather(
     m: &Mission,
