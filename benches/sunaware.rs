@@ -120,6 +120,8 @@ fn main() {
             albedo: 0.2,
             wind_m_s: 1.0,
             clearness_monthly: [1.0; 12],
+            clearness_daily: None,
+            weather: None,
         },
         horizon: Some(&horizons),
         ambient: &ambient,

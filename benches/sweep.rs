@@ -27,7 +27,7 @@ fn main() {
     let n = grid_len(&varies);
     assert_eq!(n, 1000);
     let t = Instant::now();
-    let study = Study::new(&text, &base, &exists, &[], &sunward::progress::Silent).unwrap();
+    let study = Study::new(&text, &base, &exists, &[], None, &sunward::progress::Silent).unwrap();
     let indices: Vec<usize> = (0..n).collect();
     let cases = study.run(&varies, &indices, &sunward::progress::Silent);
     let secs = t.elapsed().as_secs_f64();

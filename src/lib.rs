@@ -46,6 +46,8 @@
 //! - [`sun::shading`]: terrain horizon and sky-view factor applied to irradiance.
 //! - [`sun::panel`]: PV power with cell temperature and mounts.
 //! - [`sun::series`]: clear-sky time series.
+//! - [`sun::measured`]: a measured weather record's irradiance at any instant.
+//! - [`sun::clearness_mc`]: seeded daily clear-sky index draws (Beta, Marsaglia-Tsang).
 //! - [`battery::pack`]: Rint pack model with charge limits and exact bookkeeping.
 //! - [`battery::chemistry`]: LFP and NMC presets.
 //! - [`battery::thermal`]: lumped thermal node with thermostat heater.
@@ -63,6 +65,7 @@
 //! - [`study::size`]: battery and panel sizing by bisection.
 //! - [`mission::sunaware`]: sun-aware planning, a route and a schedule of holds from a
 //!   time-dependent label search priced by the simulation's own step arithmetic.
+//! - [`study::montecarlo`]: the weather Monte Carlo (N sampled runs per season).
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`report::sweep`]: sweep.csv and the merging of shards.
 //! - [`report::heatmap`]: a sweep's heatmap.

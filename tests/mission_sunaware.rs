@@ -149,6 +149,8 @@ fn setup<'a>(
             albedo: 0.2,
             wind_m_s: 1.0,
             clearness_monthly: [1.0; 12],
+            clearness_daily: None,
+            weather: None,
         },
         horizon,
         ambient: &k.ambient,

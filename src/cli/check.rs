@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 use clap::Args;
 
 use sunward::mission::resolve::{keep_out_off_grid, points_off_dem, DrivingHours, Mission, Sky};
-use sunward::mission::{check, Problem};
+use sunward::mission::{check, prepare, Problem};
 use sunward::terrain::io::read_dem;
 use sunward::units::rad_to_deg;
 use sunward::Error;
@@ -42,6 +42,9 @@ pub fn run(a: CheckArgs) -> Result<(), Error> {
     if !off.is_empty() {
         return Err(fail(off));
     }
+    // A weather file is parsed, and must cover every season's run.
+    let models = super::run::load_models(&mission)?;
+    prepare::check_weather_span(&mission, &models, &mission.seasons)?;
     say!(
         "{}",
         summary(&a.mission, &mission, dem.width(), dem.height())

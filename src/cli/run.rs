@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use clap::Args;
 
 use sunward::mission::prepare::{self, select_seasons, sim_setup, Ground, Models};
-use sunward::mission::resolve::{Mission, Season};
+use sunward::mission::resolve::{Mission, Season, Sky};
 use sunward::mission::runner::{run_seasons_with, SeasonResult};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
@@ -14,10 +14,13 @@ use sunward::plan::{Planner, Route};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
-use sunward::report::json::{summary, summary_json};
+use sunward::report::json::{monte_carlo_json, summary, summary_json};
 use sunward::report::map::route_map_rgb;
+use sunward::report::montecarlo_plot::monte_carlo_chart;
 use sunward::report::plot::{render_png, render_svg};
 use sunward::report::season_plot::{season_chart, seasons_chart};
+use sunward::study::montecarlo::{monte_carlo, SeasonMonteCarlo, DEFAULT_SEED};
+use sunward::sun::clearness_mc::DailyClearness;
 use sunward::terrain::io::png;
 use sunward::terrain::{hillshade, horizon, Dem};
 use sunward::vehicle::plan_model::RoverStepModel;
@@ -42,6 +45,13 @@ pub struct RunArgs {
     /// No progress display.
     #[arg(long, short = 'q')]
     quiet: bool,
+    /// Also run N sampled-weather runs per season (daily clear-sky index drawn from the
+    /// monthly `clearness` and `clearness_sd` of [weather], sky = "clearness").
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=100_000))]
+    monte_carlo: Option<u32>,
+    /// Seed of the Monte Carlo draws (same seed, same result).
+    #[arg(long, value_name = "S", requires = "monte_carlo", default_value_t = DEFAULT_SEED)]
+    seed: u64,
     /// `fixed`: the A* route driven by the mission's policy. `sun-aware`: per season, a
     /// route and a schedule of holds from a time-dependent search that keeps the reserve
     /// (start and goal only; the fixed route's verdicts are printed beside it).
@@ -58,6 +68,33 @@ pub enum PlannerKind {
     SunAware,
 }
 
+/// The weather Monte Carlo of a run.
+struct MonteCarlo {
+    runs: usize,
+    seed: u64,
+    results: Vec<SeasonMonteCarlo>,
+}
+
+/// The daily laws of the mission's sky for `--monte-carlo` (refused unless the mission
+/// gives monthly clearness means and sds).
+fn daily_laws(path: &Path, m: &Mission) -> Result<DailyClearness, Error> {
+    let (Sky::Clearness { monthly, .. }, Some(sd)) = (&m.weather.sky, &m.weather.clearness_sd)
+    else {
+        return Err(Error::Usage(format!(
+            "{}: --monte-carlo samples the daily clear-sky index from the monthly statistics, \
+             which this mission does not give. Fix: set [weather] sky = \"clearness\" with \
+             the twelve monthly clearness means and clearness_sd (one number or twelve)",
+            path.display()
+        )));
+    };
+    DailyClearness::new(monthly, sd).map_err(|e| {
+        Error::Usage(format!(
+            "{}: [weather] clearness_sd: {e}. Fix: give a smaller sd",
+            path.display()
+        ))
+    })
+}
+
 /// Reads and checks the mission file, listing every problem on failure.
 pub fn load_mission(path: &Path) -> Result<Mission, Error> {
     let text = std::fs::read_to_string(path).map_err(|source| Error::Input {
@@ -70,6 +107,26 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
         file: path.to_path_buf(),
         problems: problems.iter().map(|p| p.render(&file)).collect(),
     })
+}
+
+/// The mission's checked models, with the weather file read when the mission has one.
+/// The text of the mission's weather file, when it has one (`sky = "csv"`).
+pub fn weather_text(m: &Mission) -> Result<Option<String>, Error> {
+    match &m.weather.sky {
+        Sky::Csv { path } => {
+            std::fs::read_to_string(path)
+                .map(Some)
+                .map_err(|source| Error::Input {
+                    path: path.clone(),
+                    source,
+                })
+        }
+        _ => Ok(None),
+    }
+}
+
+pub fn load_models(m: &Mission) -> Result<Models, Error> {
+    Models::with_weather(m, weather_text(m)?.as_deref())
 }
 
 pub fn run(a: RunArgs) -> Result<(), Error> {
@@ -94,6 +151,8 @@ pub fn run_mission(
         fail_on_infeasible: false,
         quiet,
         planner: PlannerKind::Fixed,
+        monte_carlo: None,
+        seed: DEFAULT_SEED,
     })
 }
 
@@ -102,14 +161,19 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     if a.planner == PlannerKind::SunAware {
         check_sun_aware(&m)?;
     }
+    let laws = match a.monte_carlo {
+        Some(_) => Some(daily_laws(&a.mission, &m)?),
+        None => None,
+    };
     std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
         path: a.out.clone(),
         source,
     })?;
     super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
-    let models = Models::new(&m)?;
+    let models = load_models(&m)?;
     let ground = Ground::load(&m)?;
     let seasons = select_seasons(&m, &a.season)?;
+    prepare::check_weather_span(&m, &models, &seasons)?;
     let planned = match prepare::plan(&m, &ground)? {
         Ok(p) => p,
         Err(e) => return unplannable(a, &m, &seasons, &e),
@@ -130,6 +194,21 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let setup = sim_setup(&m, &models, &planned, Some(&horizons));
     let results = run_seasons_with(&setup, &seasons, progress)
         .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+    let mc = match (a.monte_carlo, &laws) {
+        (Some(n), Some(laws)) => {
+            if !a.quiet {
+                eprintln!("weather Monte Carlo: {n} runs per season, seed {}", a.seed);
+            }
+            let results = monte_carlo(&setup, &seasons, laws, n as usize, a.seed, progress)
+                .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+            Some(MonteCarlo {
+                runs: n as usize,
+                seed: a.seed,
+                results,
+            })
+        }
+        _ => None,
+    };
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     let model = RoverStepModel::new(&m.rover);
     let planner = ground.planner(&m, &model);
@@ -145,8 +224,12 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         route,
         &planner,
         &results,
+        mc.as_ref(),
     )?;
     print_verdicts(&m, &results, &a.out);
+    if let Some(mc) = &mc {
+        print_monte_carlo(mc, m.battery.reserve_soc);
+    }
     Ok(results.iter().all(|r| r.summary.feasible))
 }
 
@@ -272,11 +355,18 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
                 "NREL SPA".into(),
                 "Reda and Andreas, NREL/TP-560-34302",
             ),
-            a(
-                "irradiance",
-                "clear sky, Ineichen-Perez".into(),
-                "Ineichen and Perez, Solar Energy 73(3), 2002",
-            ),
+            match &m.weather.sky {
+                Sky::Csv { path } => a(
+                    "irradiance",
+                    format!("measured, {}", path.display()),
+                    "weather file; linear between records, beam closed on GHI",
+                ),
+                _ => a(
+                    "irradiance",
+                    "clear sky, Ineichen-Perez".into(),
+                    "Ineichen and Perez, Solar Energy 73(3), 2002",
+                ),
+            },
             a(
                 "panel plane",
                 format!("{:?}", m.weather.sky_model),
@@ -339,6 +429,7 @@ fn terrain_label(m: &Mission, mission_dir: &Path) -> String {
         .to_string()
 }
 
+#[allow(clippy::too_many_arguments)] // one call site; each argument is a distinct input
 fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     mission_dir: &Path,
     out: &Path,
@@ -347,6 +438,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     route: &Route,
     planner: &Planner<'_, M>,
     results: &[SeasonResult],
+    mc: Option<&MonteCarlo>,
 ) -> Result<(), Error> {
     let inputs = serde_json::json!({
         "site": {"name": m.site.name, "lat_deg": m.site.latitude_rad.to_degrees(),
@@ -362,7 +454,13 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         "start_local_h": m.start_local_h,
         "electronics_heat_share": m.thermal.electronics_heat_share,
     });
-    let doc = summary(&m.site.name, results, inputs);
+    let mut inputs = inputs;
+    if let Sky::Csv { path } = &m.weather.sky {
+        let label = path.strip_prefix(mission_dir).unwrap_or(path);
+        inputs["weather_file"] = label.display().to_string().into();
+    }
+    let mut doc = summary(&m.site.name, results, inputs);
+    doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
     let text = summary_json(&doc);
     write_atomic(&out.join("summary.json"), |w| w.write_all(text.as_bytes()))?;
     let mut daily = format!("{DAILY_HEADER}\n");
@@ -399,6 +497,24 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     write_atomic(&out.join("route_map.png"), |wr| {
         png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
     })?;
+    let grey_rgb: Vec<u8> = grey.iter().flat_map(|&g| [g, g, g]).collect();
+    let mut relief = Vec::new();
+    png::write_rgb8(&mut relief, dem.width(), dem.height(), &grey_rgb).map_err(|source| {
+        Error::Output {
+            path: out.join("route_map.svg"),
+            source,
+        }
+    })?;
+    let svg = sunward::report::map::route_map_svg(
+        &relief,
+        dem.width(),
+        dem.height(),
+        route,
+        &sites,
+        scale,
+        &format!("{}: route coloured by step energy", m.site.name),
+    );
+    write_atomic(&out.join("route_map.svg"), |w| w.write_all(svg.as_bytes()))?;
     let offset = m.site.utc_offset.local_minus_utc();
     let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
     let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
@@ -411,6 +527,10 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         })
         .collect();
     charts.push(("seasons".to_string(), seasons_chart(&m.site.name, results)));
+    if let Some(mc) = mc {
+        let chart = monte_carlo_chart(&m.site.name, &mc.results, m.battery.reserve_soc);
+        charts.push(("montecarlo".to_string(), chart));
+    }
     let mut figures = Vec::new();
     for (name, chart) in &charts {
         let png = render_png(chart).map_err(plot_err)?;
@@ -445,6 +565,28 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     Ok(())
 }
 
+fn print_monte_carlo(mc: &MonteCarlo, reserve_soc: f64) {
+    crate::say!(
+        "weather Monte Carlo: {} runs per season, seed {} (days drawn independently: dark \
+         spells are under-sampled, so these probabilities are optimistic)",
+        mc.runs,
+        mc.seed
+    );
+    for r in &mc.results {
+        crate::say!(
+            "  {:<18} complete in {:>5.1} % of runs  min SOC mean {:>5.1} %  5/50/95 %: {:.1} / {:.1} / {:.1} %  (reserve {:.0} %)",
+            r.season.name,
+            100.0 * r.probability_complete(),
+            100.0 * r.min_soc_mean(),
+            100.0 * r.min_soc_quantile(0.05),
+            100.0 * r.min_soc_quantile(0.5),
+            100.0 * r.min_soc_quantile(0.95),
+            100.0 * reserve_soc
+        );
+    }
+    crate::say!("  (summary.json: monte_carlo; montecarlo.png/svg)");
+}
+
 fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
     crate::say!("{}: {} season(s)", m.site.name, results.len());
     for r in results {
@@ -461,6 +603,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg, report.html", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png/svg, season-*.png/svg, seasons.png/svg, report.html", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }

@@ -13,15 +13,26 @@ use sunward::study::vary::{grid_len, Vary};
 use sunward::Error;
 
 use super::progress::Bar;
-use super::run::load_mission;
+use super::run::{load_mission, weather_text};
 
 #[derive(Debug, Args)]
 pub struct SweepArgs {
     /// The mission file (TOML; `sunward check` validates it).
     mission: PathBuf,
     /// A key and its values, KEY=A:B:STEP (repeat; every combination is a case).
-    #[arg(long, value_name = "KEY=A:B:STEP", required = true)]
+    #[arg(long, value_name = "KEY=A:B:STEP")]
     vary: Vec<String>,
+    /// Battery capacities, Wh: the same as --vary battery.capacity_wh=A:B:STEP.
+    #[arg(long, value_name = "A:B:STEP")]
+    battery_wh: Option<String>,
+    /// Duty of every payload load (every load not in policy.survival_loads): the same as
+    /// --vary payload.duty=A:B:STEP.
+    #[arg(long, value_name = "A:B:STEP")]
+    duty: Option<String>,
+    /// Season start dates, YYYY-MM-DD:YYYY-MM-DD:DAYS: the same as
+    /// --vary seasons.start_date=A:B:STEP.
+    #[arg(long, value_name = "A:B:DAYS")]
+    dates: Option<String>,
     /// Run only the seasons whose name contains this text (repeat for several).
     #[arg(long, value_name = "NAME")]
     season: Vec<String>,
@@ -170,7 +181,23 @@ fn plots(out: &Path, csv_text: &str, title: &str) -> Result<Vec<String>, Error> 
     Ok(names)
 }
 
-pub fn run_sweep(a: SweepArgs) -> Result<(), Error> {
+pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
+    let shorthands = [
+        (a.battery_wh.take(), "battery.capacity_wh"),
+        (a.duty.take(), sunward::study::vary::PAYLOAD_DUTY_KEY),
+        (a.dates.take(), sunward::study::vary::START_DATE_KEY),
+    ];
+    for (range, key) in shorthands.into_iter().rev() {
+        if let Some(r) = range {
+            a.vary.insert(0, format!("{key}={r}"));
+        }
+    }
+    if a.vary.is_empty() {
+        return Err(Error::Usage(
+            "nothing to vary. Fix: give --vary KEY=A:B:STEP (or --battery-wh, --duty, --dates)"
+                .into(),
+        ));
+    }
     let varies: Vec<Vary> = a
         .vary
         .iter()
@@ -203,7 +230,15 @@ pub fn run_sweep(a: SweepArgs) -> Result<(), Error> {
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let study = Study::new(&text, &base, &exists, &a.season, progress)?;
+    let weather = weather_text(&m)?;
+    let study = Study::new(
+        &text,
+        &base,
+        &exists,
+        &a.season,
+        weather.as_deref(),
+        progress,
+    )?;
     // Check each key's ends alone first, so a bad range fails before any case runs.
     for v in &varies {
         for end in [v.values[0], v.values[v.values.len() - 1]] {
@@ -345,6 +380,15 @@ pub fn run_merge(a: MergeArgs) -> Result<(), Error> {
     Ok(())
 }
 
+/// Four significant digits, for sizes found to a tolerance of about 1 %.
+fn round_sig(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let decimals = (3 - v.abs().log10().floor() as i32).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
 pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let m = load_mission(&a.mission)?;
     let text = read_text(&a.mission)?;
@@ -353,7 +397,15 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let study = Study::new(&text, &base, &exists, &a.season, progress)?;
+    let weather = weather_text(&m)?;
+    let study = Study::new(
+        &text,
+        &base,
+        &exists,
+        &a.season,
+        weather.as_deref(),
+        progress,
+    )?;
     let what = match a.what {
         SizeWhat::Battery => What::Battery,
         SizeWhat::Panels => What::Panels,
@@ -385,15 +437,16 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
                 return Ok(());
             }
             crate::say!(
-                "{}: smallest {} that passes every season: {:.4} {unit} (the mission has {} {unit})",
+                "{}: smallest {} that passes every season: {} {unit} (the mission has {} {unit})",
                 m.site.name,
                 what.key(),
-                s.value,
-                s.mission_value
+                round_sig(s.value),
+                round_sig(s.mission_value)
             );
             match (&s.failing_below, &s.at_failing) {
                 (Some(lo), Some(o)) => crate::say!(
-                    "  {lo:.4} {unit} fails ({:.2} % below): {}: {}",
+                    "  {} {unit} fails ({:.2} % below): {}: {}",
+                    round_sig(*lo),
                     100.0 * (1.0 - lo / s.value),
                     o.binding_season,
                     o.binding_reason

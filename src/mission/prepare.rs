@@ -11,12 +11,21 @@
 //! sites). When some leg cannot be driven no order exists: the file's order is kept and
 //! the route planner explains which limit closes the way.
 //!
+//! Measured weather (`[weather] sky = "csv"`): the caller reads the file and passes its
+//! text to [`Models::with_weather`], which parses it ([`crate::sun::climate`], naive
+//! local times at the site's UTC offset) and takes the air temperature from its
+//! `temp_air_c` column when it has one (else the monthly climate). Every season's run,
+//! from its start through the policy's deadline, must lie inside the record
+//! ([`check_weather_span`]).
+//!
 //! A route that cannot be planned is a verdict, not an error: [`unplannable`] gives every
 //! season an infeasible result stranded at the start, with the cause `tilt` (pitch and
 //! roll), `traction` (traction and sinkage) or `terrain` (keep-out, no-data, roughness,
 //! the grid edge).
 
-use crate::battery::ambient::Ambient;
+use std::path::Path;
+
+use crate::battery::ambient::{Ambient, AmbientSeries};
 use crate::battery::pack::Pack;
 use crate::battery::thermal::ThermalNode;
 use crate::error::Error;
@@ -29,7 +38,8 @@ use crate::mission::sim::{
 use crate::mission::verdict::summarize;
 use crate::plan::route::{leg_costs, locate};
 use crate::plan::{plan_route, Blocked, CellFlags, PlanError, Planner, Route, RoutePoint};
-use crate::sun::position::{delta_t_model_s, Observer};
+use crate::sun::climate::{parse_weather_csv, WeatherCsvOptions, WeatherSeries};
+use crate::sun::position::{delta_t_model_s, sun_position, Observer};
 use crate::terrain::horizon::HorizonMap;
 use crate::terrain::{io::read_dem, Dem};
 use crate::vehicle::plan_model::RoverStepModel;
@@ -221,31 +231,162 @@ pub struct Models {
     pub ambient: Ambient,
     /// The site.
     pub observer: Observer,
+    /// The measured weather record (`sky = "csv"`), with the file it came from.
+    pub weather: Option<(std::path::PathBuf, WeatherSeries)>,
 }
 
 impl Models {
-    /// Checks the battery, thermal and site values of `m`.
+    /// Checks the battery, thermal and site values of `m` (a mission without a weather
+    /// file; see [`Models::with_weather`]).
     pub fn new(m: &Mission) -> Result<Models, Error> {
+        Models::with_weather(m, None)
+    }
+
+    /// As [`Models::new`], with `weather_csv` the text of the mission's weather file
+    /// (`sky = "csv"`; the caller reads it, the core reads no files).
+    pub fn with_weather(m: &Mission, weather_csv: Option<&str>) -> Result<Models, Error> {
         let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
-        if let Sky::Csv { path } = &m.weather.sky {
-            return Err(Error::Usage(format!(
-                "{}: weather files are not used by the simulation yet. Fix: use the clear \
-                 sky ([weather] sky = \"clear_sky\") or monthly clearness for now",
-                path.display()
-            )));
-        }
+        let observer = Observer::new(
+            m.site.latitude_rad,
+            m.site.longitude_rad,
+            m.site.elevation_m,
+        )
+        .map_err(|e| stage(e.to_string()))?;
+        let weather = match (&m.weather.sky, weather_csv) {
+            (Sky::Csv { path }, Some(text)) => {
+                Some((path.clone(), parse_weather(m, path, text, &observer)?))
+            }
+            (Sky::Csv { path }, None) => {
+                return Err(Error::Usage(format!(
+                    "{}: this command does not read weather files (`run` and `check` do). \
+                     Fix: use [weather] sky = \"clearness\" or \"clear_sky\" here",
+                    path.display()
+                )))
+            }
+            _ => None,
+        };
+        let ambient = match weather
+            .as_ref()
+            .and_then(|(p, w)| air_temperature(p, w).transpose())
+        {
+            Some(series) => Ambient::Series(series?),
+            None => Ambient::Monthly(m.weather.climate.clone()),
+        };
         Ok(Models {
             pack: Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?,
             thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?,
-            ambient: Ambient::Monthly(m.weather.climate.clone()),
+            ambient,
+            observer,
+            weather,
+        })
+    }
+}
+
+impl Models {
+    /// The models of `m`, a variant of the mission these models were made for (a case of
+    /// a trade study): battery, thermal node and site from `m`, the weather record (and
+    /// its air temperature) reused, so the weather file is parsed once per study.
+    pub fn for_variant(&self, m: &Mission) -> Result<Models, Error> {
+        let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
+        let ambient = match (&self.weather, &self.ambient) {
+            (Some(_), Ambient::Series(s)) => Ambient::Series(s.clone()),
+            _ => Ambient::Monthly(m.weather.climate.clone()),
+        };
+        Ok(Models {
+            pack: Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?,
+            thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?,
+            ambient,
             observer: Observer::new(
                 m.site.latitude_rad,
                 m.site.longitude_rad,
                 m.site.elevation_m,
             )
             .map_err(|e| stage(e.to_string()))?,
+            weather: self.weather.clone(),
         })
     }
+}
+
+/// Parses the weather file's text (naive times at the site's UTC offset).
+fn parse_weather(
+    m: &Mission,
+    path: &Path,
+    text: &str,
+    observer: &Observer,
+) -> Result<WeatherSeries, Error> {
+    let options = WeatherCsvOptions {
+        utc_offset_s: Some(m.site.utc_offset.local_minus_utc()),
+        ..WeatherCsvOptions::default()
+    };
+    let year = m
+        .seasons
+        .first()
+        .map_or(2027, |s| chrono::Datelike::year(&s.date));
+    let dt = delta_t_model_s(f64::from(year) + 0.5);
+    let series = parse_weather_csv(text, &options, |t| sun_position(t, observer, dt))
+        .map_err(|e| Error::Usage(format!("{}: {e}", path.display())))?;
+    if series.records.len() < 2 {
+        return Err(Error::Usage(format!(
+            "{}: fewer than two weather records. Fix: give a record over every season's run",
+            path.display()
+        )));
+    }
+    Ok(series)
+}
+
+/// The file's air temperature column as an ambient series, when the file has one.
+fn air_temperature(path: &Path, w: &WeatherSeries) -> Result<Option<AmbientSeries>, Error> {
+    let (times, temps): (Vec<_>, Vec<_>) = w
+        .records
+        .iter()
+        .filter_map(|r| r.temp_air_c.map(|c| (r.time, c)))
+        .unzip();
+    if times.is_empty() {
+        return Ok(None);
+    }
+    AmbientSeries::from_points(times, temps)
+        .map(Some)
+        .map_err(|e| Error::Usage(format!("{}: temp_air_c: {e}", path.display())))
+}
+
+/// Every season's run (start through the deadline) must lie inside the weather record.
+pub fn check_weather_span(m: &Mission, models: &Models, seasons: &[Season]) -> Result<(), Error> {
+    let Some((path, w)) = &models.weather else {
+        return Ok(());
+    };
+    let Some((first, last)) = crate::sun::measured::span(w) else {
+        return Ok(());
+    };
+    let offset = i64::from(m.site.utc_offset.local_minus_utc());
+    let local = |t: chrono::DateTime<chrono::Utc>| {
+        (t + chrono::Duration::seconds(offset))
+            .format("%Y-%m-%d %H:%M")
+            .to_string()
+    };
+    for s in seasons {
+        let start = season_start(s.date, offset, m.start_local_h);
+        let end = start + chrono::Duration::milliseconds((m.policy.deadline_s * 1000.0) as i64);
+        if first <= start && end <= last {
+            continue;
+        }
+        return Err(Error::Usage(format!(
+            "{}: the weather record runs from {} to {} local time (UTC{}), but season \"{}\" \
+             ({}) runs from {} to {} (its start at {:.2} h plus the deadline of {} days). \
+             Fix: give weather records covering the season's run, move the season's date \
+             into the record, or shorten [policy] deadline_days",
+            path.display(),
+            local(first),
+            local(last),
+            m.site.utc_offset,
+            s.name,
+            s.date,
+            local(start),
+            local(end),
+            m.start_local_h,
+            m.policy.deadline_s / 86_400.0
+        )));
+    }
+    Ok(())
 }
 
 /// The state of charge every season starts with (the runner's convention: a full pack
@@ -262,7 +403,7 @@ pub fn sim_setup<'a>(
     let (linke, clearness_monthly) = match &m.weather.sky {
         Sky::ClearSky(l) => (*l, [1.0; 12]),
         Sky::Clearness { linke, monthly } => (*linke, *monthly),
-        // Refused by Models::new; a clear sky is the bound if it ever gets here.
+        // The measured record replaces the clear sky (models.weather).
         Sky::Csv { .. } => (Default::default(), [1.0; 12]),
     };
     let year = m
@@ -288,6 +429,8 @@ pub fn sim_setup<'a>(
             albedo: m.weather.albedo,
             wind_m_s: m.weather.wind_m_s,
             clearness_monthly,
+            clearness_daily: None,
+            weather: models.weather.as_ref().map(|(_, w)| w),
         },
         horizon: horizons,
         ambient: &models.ambient,

@@ -12,8 +12,13 @@
 //!    each route step (its battery energy minus the hotel energy of its driving time) is
 //!    spread over its driving time; partial steps are prorated.
 //! 3. **Sun**: SPA position at the middle of the step, Ineichen-Perez clear sky (scaled
-//!    by a monthly clearness factor when the mission gives one: every component alike,
-//!    a simple scaling that keeps the clear sky's beam/diffuse split),
+//!    by a monthly clearness factor when the mission gives one, or by a clear-sky index
+//!    per local day when the setup carries one ([`SkySetup::clearness_daily`], the
+//!    weather Monte Carlo's draws): every component alike, a simple scaling that keeps
+//!    the clear sky's beam/diffuse split), or, with a measured weather record
+//!    ([`SkySetup::weather`]), the record's GHI/DNI/DHI at the middle of the step by the
+//!    rule of [`crate::sun::measured`] (linear in time, beam closed on GHI at the step's
+//!    own sun position, dark below the horizon),
 //!    transposition onto the panel plane of the mount at the body attitude of the current
 //!    route step (body-mounted panels follow pitch, roll and heading), terrain shading of
 //!    the current cell from the horizon map, PV power at the cell temperature.
@@ -40,7 +45,8 @@
 //! takes the attitude of the step it is about to drive). With no holds nothing changes.
 //!
 //! # Limits
-//! Clear-sky irradiance only (an upper bound of real skies); acceleration and turning
+//! Without a weather record the sky is the clear sky, scaled (an upper bound of real
+//! skies unless the scaling says otherwise); acceleration and turning
 //! energy are left out; the rover's state inside a step is taken as constant.
 //!
 //! # Units
@@ -108,7 +114,7 @@ pub struct Policy {
 
 /// The sun and sky side of a run.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SkySetup {
+pub struct SkySetup<'a> {
     /// The site.
     pub observer: Observer,
     /// ΔT = TT − UT, seconds.
@@ -124,6 +130,13 @@ pub struct SkySetup {
     /// Monthly factor on the clear-sky irradiance, January..December (1 = clear sky;
     /// a monthly clearness relative to clear sky, e.g. measured / clear-sky daily GHI).
     pub clearness_monthly: [f64; 12],
+    /// Clear-sky index per local day (index 0 = the local calendar day of the run's
+    /// start, at the site's `utc_offset_s`), overriding the monthly factor on the days it
+    /// covers; later days take the monthly factor. `None`: the monthly factor throughout.
+    pub clearness_daily: Option<&'a [f64]>,
+    /// A measured weather record: its irradiance replaces the clear sky (and the
+    /// clearness factors) and must cover the whole run. `None`: the clear sky.
+    pub weather: Option<&'a crate::sun::climate::WeatherSeries>,
 }
 
 /// A payload stop: when the rover reaches profile row `row`, it parks there for
@@ -170,7 +183,7 @@ pub struct SimSetup<'a> {
     /// How the panels are mounted.
     pub mount: Mount,
     /// Sun and sky.
-    pub sky: SkySetup,
+    pub sky: SkySetup<'a>,
     /// Terrain horizons for shading (None: open horizon).
     pub horizon: Option<&'a HorizonMap>,
     /// Air temperature.
@@ -318,6 +331,18 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     {
         return Err(bad("clearness_monthly", f64::NAN, "factors from 0 to 1.2"));
     }
+    if let Some(d) = setup.sky.clearness_daily {
+        if let Some(k) = d.iter().find(|k| !(0.0..=1.2).contains(*k)) {
+            return Err(bad("clearness_daily", *k, "factors from 0 to 1.2"));
+        }
+        if setup.sky.weather.is_some() {
+            return Err(bad(
+                "clearness_daily",
+                f64::NAN,
+                "no daily clearness with a measured weather record",
+            ));
+        }
+    }
     if !(0.0..=1.0).contains(&setup.initial_soc) {
         return Err(bad(
             "initial_soc",
@@ -345,10 +370,21 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     Ok(())
 }
 
+/// Relative shortfall below which a step counts as served (see its use).
+pub(crate) const SHORTFALL_TOLERANCE: f64 = 1e-6;
+
 /// Runs one season from `start`.
 pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimError> {
     check(setup)?;
     let end = start + Duration::milliseconds((setup.policy.deadline_s * 1000.0) as i64);
+    if let Some(w) = setup.sky.weather {
+        if !crate::sun::measured::covers(w, start, end) {
+            return Err(SimError::Stage(format!(
+                "the weather record does not cover the run from {start} to {end}"
+            )));
+        }
+    }
+    let day0 = local_day(start, setup.utc_offset_s);
     let track = SunTrack::new(
         start,
         end + Duration::hours(1),
@@ -482,7 +518,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             pitch_rad: heading_row.pitch_rad,
             roll_rad: heading_row.roll_rad,
         };
-        let poa_w_m2 = poa(setup, &sun, &att, here.col, here.row, mid);
+        let day = local_day(mid, setup.utc_offset_s) - day0;
+        let poa_w_m2 = poa(setup, &sun, &att, (here.col, here.row), mid, day);
         let gen_w = setup.panel.power_at_w(poa_w_m2, air_c, setup.sky.wind_m_s);
         // Loads.
         let hotel_w = if activity == Activity::Asleep {
@@ -541,8 +578,11 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         pack_state = ps.state;
         let losses_wh = ps.loss_resistive_wh + ps.loss_coulombic_wh;
         last_loss_w = losses_wh * 3600.0 / dt;
+        // A shortfall below a millionth of the demand is the pack's round-off (its
+        // fixed-point current solve), not a lack of energy: large packs see it.
+        let short = ps.shortfall_w > SHORTFALL_TOLERANCE * demand_w.max(1.0);
         // Served share of the demand (below 1 only in the step that strands the rover).
-        let served = if ps.shortfall_w > 1e-9 && demand_w > 0.0 {
+        let served = if short && demand_w > 0.0 {
             ((demand_w - ps.shortfall_w) / demand_w).clamp(0.0, 1.0)
         } else {
             1.0
@@ -594,7 +634,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             ambient_c: air_c,
             sun_elevation_deg: sun.apparent_elevation_rad().to_degrees(),
         });
-        if ps.shortfall_w > 1e-9 {
+        if short {
             let (heater, used) = day_window
                 .iter()
                 .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
@@ -685,11 +725,11 @@ fn poa(
     setup: &SimSetup<'_>,
     sun: &crate::sun::position::SunPosition,
     att: &Attitude,
-    col: usize,
-    row: usize,
+    (col, row): (usize, usize),
     t: DateTime<Utc>,
+    day: i64,
 ) -> f64 {
-    match sky_now(setup, sun, t) {
+    match sky_now(setup, sun, t, day) {
         Some(sky) => poa_on(setup, &sky, att, col, row),
         None => 0.0,
     }
@@ -703,34 +743,25 @@ pub(crate) struct SkyNow {
     irr: crate::sun::irradiance::Components,
 }
 
-/// The sky at `t` with the sun at `sun` (None: the sun is down, no light).
+/// The sky at `t` (local day `day` of the run) with the sun at `sun`; None: no light.
 pub(crate) fn sky_now(
     setup: &SimSetup<'_>,
     sun: &crate::sun::position::SunPosition,
     t: DateTime<Utc>,
+    day: i64,
 ) -> Option<SkyNow> {
     let am = relative_airmass(sun.apparent_zenith_rad)?;
     let e0 = extraterrestrial_w_m2(sun.earth_sun_distance_au);
-    use chrono::Datelike;
     let sky = &setup.sky;
-    let irr = ineichen_perez(
-        sun.apparent_zenith_rad,
-        absolute_airmass(am, sky.observer.pressure_hpa),
-        sky.linke.for_month(t.month()),
-        sky.observer.elevation_m,
-        e0,
-    );
+    let irr = match sky.weather {
+        Some(w) => crate::sun::measured::irradiance_at(w, t, sun.apparent_zenith_rad)?,
+        None => clear_sky(sky, sun, am, e0, t, day),
+    };
     let geom = SunGeometry {
         zenith_rad: sun.apparent_zenith_rad,
         azimuth_rad: sun.azimuth_rad,
         dni_extra_w_m2: e0,
         airmass_relative: Some(am),
-    };
-    let k = sky.clearness_monthly[t.month0() as usize];
-    let irr = crate::sun::irradiance::Components {
-        ghi_w_m2: irr.ghi_w_m2 * k,
-        dni_w_m2: irr.dni_w_m2 * k,
-        dhi_w_m2: irr.dhi_w_m2 * k,
     };
     Some(SkyNow {
         sun: *sun,
@@ -761,6 +792,41 @@ pub(crate) fn poa_on(
         p = shade.apply(p, sun.apparent_elevation_rad(), sun.azimuth_rad);
     }
     p.total_w_m2()
+}
+
+/// The clear sky at `t`, scaled by the day's or the month's clearness factor.
+fn clear_sky(
+    sky: &SkySetup<'_>,
+    sun: &crate::sun::position::SunPosition,
+    am: f64,
+    e0: f64,
+    t: DateTime<Utc>,
+    day: i64,
+) -> crate::sun::irradiance::Components {
+    use chrono::Datelike;
+    let irr = ineichen_perez(
+        sun.apparent_zenith_rad,
+        absolute_airmass(am, sky.observer.pressure_hpa),
+        sky.linke.for_month(t.month()),
+        sky.observer.elevation_m,
+        e0,
+    );
+    let daily = sky
+        .clearness_daily
+        .and_then(|d| usize::try_from(day).ok().and_then(|i| d.get(i)));
+    let k = daily
+        .copied()
+        .unwrap_or(sky.clearness_monthly[t.month0() as usize]);
+    crate::sun::irradiance::Components {
+        ghi_w_m2: irr.ghi_w_m2 * k,
+        dni_w_m2: irr.dni_w_m2 * k,
+        dhi_w_m2: irr.dhi_w_m2 * k,
+    }
+}
+
+/// Days since 1970-01-01 on the site's clock.
+pub(crate) fn local_day(t: DateTime<Utc>, offset_s: i64) -> i64 {
+    (t.timestamp() + offset_s).div_euclid(86_400)
 }
 
 pub(crate) fn local_seconds(t: DateTime<Utc>, offset_s: i64) -> f64 {

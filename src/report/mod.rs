@@ -6,6 +6,7 @@ pub mod heatmap;
 pub mod html;
 pub mod json;
 pub mod map;
+pub mod montecarlo_plot;
 pub mod plot;
 pub mod season_plot;
 pub mod sweep;

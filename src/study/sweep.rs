@@ -128,6 +128,7 @@ pub struct Study<'a> {
     only: Vec<String>,
     ground: Ground,
     horizons: HorizonMap,
+    models: Models,
 }
 
 /// A case's mission, or why it has none.
@@ -139,12 +140,14 @@ type PlanOutcome = Result<Result<Planned, PlanError>, String>;
 impl<'a> Study<'a> {
     /// Reads the base mission's terrain and computes its horizon map. `text` is the
     /// mission file (checked already), `base` its folder, `exists` the file lookup,
-    /// `only` the season filter of `--season`.
+    /// `only` the season filter of `--season`, `weather_csv` the text of the mission's
+    /// weather file when it has one (`sky = "csv"`; parsed once for every case).
     pub fn new(
         text: &str,
         base: &'a Path,
         exists: &'a (dyn Fn(&Path) -> bool + Sync),
         only: &[String],
+        weather_csv: Option<&str>,
         progress: &dyn Progress,
     ) -> Result<Study<'a>, Error> {
         let m = crate::mission::check(text, base, exists).map_err(|p| {
@@ -159,6 +162,7 @@ impl<'a> Study<'a> {
         crate::mission::prepare::select_seasons(&m, only)?;
         let doc: toml::Table = toml::from_str(text)
             .map_err(|e| Error::Usage(format!("the mission file is not TOML: {e}")))?;
+        let models = Models::with_weather(&m, weather_csv)?;
         let ground = Ground::load(&m)?;
         let horizons = crate::terrain::horizon::horizon_map(
             &ground.dem,
@@ -172,6 +176,7 @@ impl<'a> Study<'a> {
             only: only.to_vec(),
             ground,
             horizons,
+            models,
         })
     }
 
@@ -219,7 +224,7 @@ impl<'a> Study<'a> {
                 .map(|r| r.summary)
                 .collect(),
             Ok(p) => {
-                let models = match Models::new(m) {
+                let models = match self.models.for_variant(m) {
                     Ok(x) => x,
                     Err(e) => return invalid(e.to_string()),
                 };

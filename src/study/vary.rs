@@ -13,6 +13,9 @@
 //! (`A` and `B` as `YYYY-MM-DD`, `STEP` in whole days, e.g. `7` or `7d`); each case runs
 //! that one date (the `[seasons]` section becomes `mode = "dates"` with that date).
 //!
+//! And `payload.duty`: the `duty` of every load not named in `policy.survival_loads`
+//! (the payload), all set to the same value.
+//!
 //! # Values
 //! `A:B:STEP` gives `A, A + STEP, …` up to and including `B` (within a millionth of a
 //! step, so that decimal steps land on `B`); each value is `A + i·STEP` rounded to 12
@@ -27,6 +30,10 @@ pub const MAX_VALUES_PER_KEY: usize = 100_000;
 
 /// The virtual key for the season's start date.
 pub const START_DATE_KEY: &str = "seasons.start_date";
+
+/// The virtual key for the duty of every payload load (every load not named in
+/// `policy.survival_loads`).
+pub const PAYLOAD_DUTY_KEY: &str = "payload.duty";
 
 /// One value of a varied key.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -264,6 +271,9 @@ pub fn set(doc: &mut toml::Table, key: &str, value: Value) -> Result<(), String>
     let Value::Number(v) = value else {
         return Err(format!("{key} takes numbers, not dates"));
     };
+    if key == PAYLOAD_DUTY_KEY {
+        return set_payload_duty(doc, v);
+    }
     let segs: Vec<&str> = key.split('.').map(str::trim).collect();
     let mut table = doc;
     let mut i = 0;
@@ -334,6 +344,55 @@ pub fn set(doc: &mut toml::Table, key: &str, value: Value) -> Result<(), String>
         toml::Value::Float(v)
     };
     table.insert(last.to_string(), val);
+    Ok(())
+}
+
+/// Writes `duty = v` into every load not named in `policy.survival_loads`.
+fn set_payload_duty(doc: &mut toml::Table, v: f64) -> Result<(), String> {
+    let survival: Vec<String> = doc
+        .get("policy")
+        .and_then(|p| p.get("survival_loads"))
+        .and_then(toml::Value::as_array)
+        .map(|a| {
+            a.iter()
+                .filter_map(|x| x.as_str().map(String::from))
+                .collect()
+        })
+        .unwrap_or_default();
+    let mut n = 0;
+    let mut put = |name: &str, t: &mut toml::Table| {
+        if !survival.iter().any(|s| s == name) {
+            t.insert("duty".into(), toml::Value::Float(v));
+            n += 1;
+        }
+    };
+    match doc.get_mut("loads") {
+        Some(toml::Value::Array(items)) => {
+            for it in items {
+                if let toml::Value::Table(t) = it {
+                    let name = t
+                        .get("name")
+                        .and_then(toml::Value::as_str)
+                        .unwrap_or("")
+                        .to_string();
+                    put(&name, t);
+                }
+            }
+        }
+        Some(toml::Value::Table(named)) => {
+            for (name, it) in named.iter_mut() {
+                if let toml::Value::Table(t) = it {
+                    put(name, t);
+                }
+            }
+        }
+        _ => {}
+    }
+    if n == 0 {
+        return Err(format!(
+            "{PAYLOAD_DUTY_KEY}: the mission has no load outside policy.survival_loads"
+        ));
+    }
     Ok(())
 }
 

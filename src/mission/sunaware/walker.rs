@@ -29,7 +29,8 @@ use crate::battery::pack::{PackState, StepRequest};
 use crate::battery::thermal::{ThermalInput, ThermalState};
 use crate::mission::ledger::Ledger;
 use crate::mission::sim::{
-    in_window, local_seconds, poa_on, sky_now, DriveHours, SimError, SimSetup, SkyNow,
+    in_window, local_day, local_seconds, poa_on, sky_now, DriveHours, SimError, SimSetup, SkyNow,
+    SHORTFALL_TOLERANCE,
 };
 use crate::sun::panel::Attitude;
 use crate::sun::position::{SunTrack, DEFAULT_NODE_STEP_S};
@@ -59,6 +60,14 @@ impl Clock {
     pub(crate) fn new(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Clock, SimError> {
         let dt = setup.step_s;
         let end = start + Duration::milliseconds((setup.policy.deadline_s * 1000.0) as i64);
+        if let Some(w) = setup.sky.weather {
+            if !crate::sun::measured::covers(w, start, end) {
+                return Err(SimError::Stage(format!(
+                    "the weather record does not cover the run from {start} to {end}"
+                )));
+            }
+        }
+        let day0 = local_day(start, setup.utc_offset_s);
         let track = SunTrack::new(
             start,
             end + Duration::hours(1),
@@ -83,7 +92,7 @@ impl Clock {
                     }
                 };
                 StepSky {
-                    sky: sky_now(setup, &sun, mid),
+                    sky: sky_now(setup, &sun, mid, local_day(mid, setup.utc_offset_s) - day0),
                     air_c: setup.ambient.temp_c(mid, setup.utc_offset_s),
                     local_s,
                     daylight,
@@ -359,7 +368,9 @@ impl Walker<'_, '_> {
         w.next_j += 1;
         w.drive_j = 0.0;
         w.drove = false;
-        if ps.shortfall_w > 1e-9 || ps.state.soc < self.reserve_soc {
+        if ps.shortfall_w > SHORTFALL_TOLERANCE * demand_w.max(1.0)
+            || ps.state.soc < self.reserve_soc
+        {
             return Err(Halt::Reserve);
         }
         Ok(())
