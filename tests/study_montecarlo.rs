@@ -210,6 +210,7 @@ fn setup(w: &World) -> SimSetup<'_> {
         stops: Vec::new(),
         holds: Vec::new(),
         start_local_h: 0.0,
+        sun_steps: None,
     }
 }
 

@@ -440,6 +440,7 @@ pub fn sim_setup<'a>(
         stops: planned.stops.clone(),
         holds: Vec::new(),
         start_local_h: m.start_local_h,
+        sun_steps: None,
     }
 }
 
