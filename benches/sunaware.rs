@@ -138,6 +138,7 @@ fn main() {
         stops: Vec::new(),
         holds: Vec::new(),
         start_local_h: 0.0,
+        sun_steps: None,
     };
     let t0 = NaiveDate::from_ymd_opt(2027, 9, 23)
         .unwrap()

@@ -160,6 +160,7 @@ fn setup<'a>(
         stops: Vec::new(),
         holds: Vec::new(),
         start_local_h: 0.0,
+        sun_steps: None,
     }
 }
 
