@@ -57,6 +57,7 @@
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
 //! - [`report`]: output serialisers and the one atomic writer.
+//! - [`limits`]: the memory budget checked before the large per-cell allocations.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
 //! The numeric core does no I/O and prints nothing; the CLI in `src/main.rs` and
@@ -67,6 +68,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod limits;
 pub mod mission;
 pub mod plan;
 pub mod progress;

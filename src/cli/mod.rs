@@ -62,6 +62,10 @@ pub struct DemOptions {
     /// Refuse rasters with more cells than this (checked before reading the data).
     #[arg(long, value_name = "CELLS", default_value_t = DEFAULT_MAX_CELLS)]
     pub max_cells: u64,
+    /// Memory budget in MiB for the route planner's and the horizon maps' per-cell
+    /// arrays, checked before they are allocated.
+    #[arg(long, value_name = "MIB", default_value_t = sunward::limits::DEFAULT_MAX_MEMORY_MB)]
+    pub max_memory_mb: u64,
 }
 
 impl DemOptions {
@@ -69,6 +73,7 @@ impl DemOptions {
     pub fn read_options(&self) -> ReadOptions {
         ReadOptions {
             max_cells: self.max_cells,
+            max_memory_mb: self.max_memory_mb,
             png: self.cell_m.map(|cell_m| PngScale {
                 cell_m,
                 z_scale_m: self.z_scale,
@@ -82,6 +87,26 @@ impl DemOptions {
     pub fn load(&self, path: &Path) -> Result<sunward::terrain::Dem, Error> {
         Ok(sunward::terrain::io::read_dem(path, &self.read_options())?)
     }
+}
+
+/// Refuses a job on `dem` (read from `path`) whose per-cell arrays (`bytes`) exceed the memory budget
+/// carried by `opts`, before they are allocated.
+pub fn check_memory(
+    opts: &ReadOptions,
+    path: &Path,
+    dem: &sunward::terrain::Dem,
+    what: &str,
+    bytes: u64,
+) -> Result<(), Error> {
+    sunward::limits::check(
+        path,
+        what,
+        dem.width(),
+        dem.height(),
+        bytes,
+        opts.max_memory_mb,
+    )?;
+    Ok(())
 }
 
 /// A DEM given as the first positional argument, with its reading flags.

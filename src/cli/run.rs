@@ -233,6 +233,11 @@ pub fn run_mission(
         )));
     }
     let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
+    let cells = dem.len() as u64;
+    let need = sunward::limits::planner_bytes(cells)
+        + sunward::limits::horizon_bytes(cells, horizon::DEFAULT_SECTORS as u64);
+    let what = "the route planner's arrays and the horizon maps";
+    super::check_memory(&m.terrain.read, &m.terrain.dem_path, &dem, what, need)?;
     let flags = flags_for(&m, &dem)?;
     let model = RoverStepModel::new(&m.rover);
     let planner = Planner {

@@ -546,6 +546,8 @@ fn terrain(
     let png = png_scale(t, out);
     let read = ReadOptions {
         max_cells: get(&t.max_cells).map_or(DEFAULT_MAX_CELLS, |n| n as u64),
+        max_memory_mb: get(&t.max_memory_mb)
+            .map_or(crate::limits::DEFAULT_MAX_MEMORY_MB, |n| n as u64),
         png: png?,
     };
     let keep_out_at = out.at(t.keep_out.as_ref().map(|k| k.span()));

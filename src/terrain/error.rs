@@ -40,7 +40,8 @@ pub enum TerrainError {
     /// The header declares more cells than the configured limit.
     #[error(
         "{path}: the raster is {width} x {height} = {cells} cells, more than the limit of \
-         {limit} cells. Fix: crop or resample the raster, or raise the limit with --max-cells"
+         {limit} cells. Fix: crop or resample the raster, or raise the limit with --max-cells (in a \
+         mission file: max_cells under [terrain])"
     )]
     TooLarge {
         /// The file.

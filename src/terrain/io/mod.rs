@@ -23,6 +23,10 @@ pub const DEFAULT_MAX_CELLS: u64 = 1 << 28;
 pub struct ReadOptions {
     /// Refuse rasters with more cells than this, before allocating.
     pub max_cells: u64,
+    /// Memory budget in MiB for the large per-cell arrays of the jobs that follow the
+    /// reading (see [`crate::limits`]); carried here so that it travels with the DEM's
+    /// other limits from the command line or the mission file.
+    pub max_memory_mb: u64,
     /// Cell size and vertical mapping for PNG heightmaps (required for .png).
     pub png: Option<PngScale>,
 }
@@ -31,6 +35,7 @@ impl Default for ReadOptions {
     fn default() -> Self {
         ReadOptions {
             max_cells: DEFAULT_MAX_CELLS,
+            max_memory_mb: crate::limits::DEFAULT_MAX_MEMORY_MB,
             png: None,
         }
     }
