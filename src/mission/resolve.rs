@@ -952,6 +952,12 @@ fn check_stage<T: serde::de::DeserializeOwned>(
         let Err(e) = check(&value) else {
             return ok.then_some(value);
         };
+        // With a bad key already dropped, a complaint about keys that belong together
+        // ("capacity_wh and nominal_voltage_v must be given together") is about the
+        // drop, not about the file: report nothing more.
+        if !ok && matches!(e, BatteryError::Inconsistent { .. }) {
+            return None;
+        }
         ok = false;
         t = t.without(&battery_problem(prefix, &t, e, out)?);
     }

@@ -50,6 +50,11 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
                 "the file ends before the data its header declares (truncated or damaged)"
                     .to_string()
             }
+            tiff::TiffError::FormatError(tiff::TiffFormatError::InconsistentSizesEncountered) => {
+                "the header's sizes disagree with each other (image size, samples per pixel, \
+                 strip or tile counts)"
+                    .to_string()
+            }
             other => other.to_string(),
         };
         TerrainError::malformed(
