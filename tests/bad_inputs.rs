@@ -591,7 +591,8 @@ fn start_on_a_cliff_is_infeasible_for_tilt() {
     assert_eq!(code, 1);
 }
 
-/// A goal inside the keep-out raster: refused with exit code 2, nothing written.
+/// A goal inside the keep-out raster: `check` places the problem at `route.goal_m`; `run`
+/// refuses it from the planner; exit code 2 and nothing written.
 #[test]
 fn goal_in_a_keep_out_is_refused() {
     let s = Scratch::new();
@@ -619,6 +620,13 @@ fn goal_in_a_keep_out_is_refused() {
         text += "\n";
     }
     s.write("keep.asc", text);
+    check_refused(
+        &s,
+        &["check", "m.toml"],
+        "m.toml: the mission file has 1 problem(s):\nm.toml:9:10: route.goal_m: goal (45, \
+         15) lies inside the keep-out area (a cell of terrain.keep_out with data). Fix: \
+         move the point out of the keep-out area, or clear that cell of the mask",
+    );
     check_refused(
         &s,
         &["run", "m.toml", "--out", "out"],
