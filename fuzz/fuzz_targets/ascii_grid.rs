@@ -5,6 +5,9 @@
 use std::path::Path;
 
 use libfuzzer_sys::fuzz_target;
+
+#[path = "common.rs"]
+mod common;
 use sunward::terrain::io::ascii;
 
 const MAX_CELLS: u64 = 1 << 20;
@@ -20,7 +23,6 @@ fuzz_target!(|data: &[u8]| {
         None => (text, None),
     };
     if let Ok(dem) = ascii::parse(grid, prj, Path::new("fuzz.asc"), MAX_CELLS) {
-        assert_eq!(dem.data().len(), dem.width() * dem.height());
-        assert!(dem.len() as u64 <= MAX_CELLS);
+        common::exercise(&dem, MAX_CELLS);
     }
 });
