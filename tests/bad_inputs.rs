@@ -379,6 +379,35 @@ fn no_data_everywhere_is_refused_in_every_format() {
     }
 }
 
+/// A geographic grid (a .prj in degrees) reaching past the pole, and a header whose cell
+/// size no terrain has: refused after reading, before any analysis.
+#[test]
+fn impossible_georeferences_are_refused() {
+    let s = Scratch::new();
+    let grid = |corner: &str, cell: &str| {
+        format!(
+            "ncols 4\nnrows 3\nxllcorner 0\nyllcorner {corner}\ncellsize {cell}\n\
+             1 2 3 4\n5 6 7 8\n9 10 11 12\n"
+        )
+    };
+    s.write("pole.asc", grid("80", "5"));
+    s.write("pole.prj", r#"GEOGCS["WGS 84",AUTHORITY["EPSG","4326"]]"#);
+    check_refused(
+        &s,
+        &["terrain", "info", "pole.asc"],
+        "pole.asc: the grid is geographic (degrees) but spans latitude 80 to 95 and \
+         longitude 0 to 20, beyond ±90° and ±360°. Fix: check the georeference: a projected \
+         grid needs its projected CRS (gdal_edit.py -a_srs EPSG:CODE)",
+    );
+    s.write("tiny.asc", grid("0", "1e-300"));
+    check_refused(
+        &s,
+        &["terrain", "info", "tiny.asc"],
+        "tiny.asc: cells of 1e-300 x 1e-300 m, outside 0.0001 m to 1000000 m. Fix: check \
+         the cell size in the header or the georeference tags",
+    );
+}
+
 #[test]
 fn memory_budget_is_checked_before_the_planner_and_the_horizon_maps() {
     let s = Scratch::new();

@@ -66,6 +66,16 @@ pub enum TerrainError {
         /// Number of cells.
         cells: usize,
     },
+    /// The grid reads, but its georeference or values cannot describe real terrain.
+    #[error("{path}: {detail}. Fix: {fix}")]
+    Implausible {
+        /// The file.
+        path: PathBuf,
+        /// What is impossible about it.
+        detail: String,
+        /// What the user can do.
+        fix: &'static str,
+    },
     /// A parameter of an analysis is out of range.
     #[error("invalid parameter {name} = {value}: {expected}")]
     Parameter {
