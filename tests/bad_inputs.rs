@@ -584,6 +584,27 @@ fn mission_limits_name_the_mission_key() {
     );
 }
 
+/// A step of a millisecond over a year: the time series alone would need terabytes, so
+/// `check` and `run` refuse it before anything runs, naming the keys to change.
+#[test]
+fn a_time_series_over_the_memory_budget_is_refused_before_running() {
+    let s = Scratch::new();
+    mission(
+        &s,
+        "m.toml",
+        "[battery]",
+        "[policy]\ndeadline_days = 366.0\n[simulation]\nstep_s = 0.001\n[battery]",
+    );
+    let want = "m.toml: the time series of 4 season(s) of up to 31622400001 steps (366 days at \
+                0.001 s) need about 23160938 MiB, more than the memory budget of 8192 MiB. \
+                Fix: raise the budget with --max-memory-mb (in a mission file: max_memory_mb \
+                under [terrain]) if the machine has the memory, or use a longer [simulation] \
+                step_s, a shorter [policy] deadline_days or fewer seasons";
+    check_refused(&s, &["check", "m.toml"], want);
+    check_refused(&s, &["run", "m.toml", "--out", "out"], want);
+    assert!(!s.path("out/summary.json").exists());
+}
+
 /// A start on top of a pillar: the route cannot be planned, so every season is
 /// infeasible, stranded at the start by the tilt limits; exit 0, or 1 when asked.
 #[test]

@@ -35,6 +35,7 @@ pub fn run(a: CheckArgs) -> Result<(), Error> {
         problems: problems.iter().map(|p| p.render(&file)).collect(),
     };
     let mission = check(&text, &base, &exists).map_err(fail)?;
+    super::check_series_memory(&a.mission, &mission)?;
     let dem = read_dem(&mission.terrain.dem_path, &mission.terrain.read)?;
     let mut off = points_off_dem(&mission.route, &dem);
     if let Some(mask_path) = &mission.terrain.keep_out_path {

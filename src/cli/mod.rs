@@ -89,8 +89,8 @@ impl DemOptions {
     }
 }
 
-/// Refuses a job on `dem` (read from `path`) whose per-cell arrays (`bytes`) exceed the memory budget
-/// carried by `opts`, before they are allocated.
+/// Refuses a job on `dem` (read from `path`) whose per-cell arrays (`bytes`) exceed the
+/// memory budget carried by `opts`, before they are allocated.
 pub fn check_memory(
     opts: &ReadOptions,
     path: &Path,
@@ -98,14 +98,26 @@ pub fn check_memory(
     what: &str,
     bytes: u64,
 ) -> Result<(), Error> {
-    sunward::limits::check(
-        path,
-        what,
-        dem.width(),
-        dem.height(),
-        bytes,
-        opts.max_memory_mb,
-    )?;
+    let size = (dem.width(), dem.height());
+    sunward::limits::check_grid(path, what, size, bytes, opts.max_memory_mb)?;
+    Ok(())
+}
+
+/// Refuses a mission whose seasons' time series (one sample per step up to the deadline,
+/// every season held at once) exceed the memory budget, before anything runs.
+pub fn check_series_memory(path: &Path, m: &sunward::mission::Mission) -> Result<(), Error> {
+    let steps = (m.policy.deadline_s / m.step_s).ceil().min(u64::MAX as f64) as u64 + 1;
+    let seasons = m.seasons.len() as u64;
+    let sample = std::mem::size_of::<sunward::mission::sim::Sample>() as u64;
+    let bytes = sunward::limits::time_series_bytes(steps, seasons, sample);
+    let what = format!(
+        "the time series of {seasons} season(s) of up to {steps} steps ({} days at {} s)",
+        m.policy.deadline_s / 86_400.0,
+        m.step_s
+    );
+    let instead = "use a longer [simulation] step_s, a shorter [policy] deadline_days or fewer \
+                   seasons";
+    sunward::limits::check(path, what, bytes, m.terrain.read.max_memory_mb, instead)?;
     Ok(())
 }
 

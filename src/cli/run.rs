@@ -232,6 +232,7 @@ pub fn run_mission(
             path.display()
         )));
     }
+    super::check_series_memory(&a.mission, &m)?;
     let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
     let cells = dem.len() as u64;
     let need = sunward::limits::planner_bytes(cells)
