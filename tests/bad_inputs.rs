@@ -167,6 +167,56 @@ fn corrupt_geotiffs_are_refused() {
     );
 }
 
+/// A small file whose header declares a larger image than its data blocks can hold, or
+/// whose block lies past the end of the file: refused before the decoder allocates the
+/// image (the 36 MB here; terabytes for `huge_dims.tif` once the cell limit is raised).
+#[test]
+fn data_blocks_too_small_for_the_header_are_refused_before_allocating() {
+    let s = Scratch::new();
+    let mut tif = plane_tif();
+    for tag in [256, 257, 278] {
+        let at = entry_value_at(&tif, tag);
+        tif[at..at + 4].copy_from_slice(&3000u32.to_le_bytes());
+    }
+    s.write("small_blocks.tif", &tif);
+    check_refused(
+        &s,
+        &["terrain", "info", "small_blocks.tif"],
+        "small_blocks.tif: not a readable GeoTIFF: the data blocks are too small for the \
+         image the header declares: 36000000 bytes of pixels, 1200 bytes stored \
+         (uncompressed). Fix: check that the file is complete (was the download or copy cut \
+         short?)",
+    );
+    let mut tif = plane_tif();
+    let at = entry_value_at(&tif, 273);
+    tif[at..at + 4].copy_from_slice(&5000u32.to_le_bytes());
+    let len = tif.len();
+    s.write("far_block.tif", &tif);
+    check_refused(
+        &s,
+        &["terrain", "info", "far_block.tif"],
+        &format!(
+            "far_block.tif: not a readable GeoTIFF: the file ends before the data its header \
+             declares: data block 1 of 1 (1200 bytes at offset 5000) lies past the end of the \
+             {len}-byte file. Fix: check that the file is complete (was the download or copy \
+             cut short?)"
+        ),
+    );
+    let huge = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/data/bad/huge_dims.tif");
+    let (code, err) = s.run(&[
+        "terrain",
+        "info",
+        huge.to_str().unwrap(),
+        "--max-cells",
+        "2000000000000",
+    ]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("4000000000000 bytes of pixels, 16 bytes stored (uncompressed)"),
+        "{err}"
+    );
+}
+
 #[test]
 fn wrong_sample_formats_are_refused() {
     let s = Scratch::new();

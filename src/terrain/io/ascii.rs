@@ -122,7 +122,9 @@ pub fn parse(
             limit: max_cells,
         });
     }
-    let mut data = Vec::with_capacity(cells as usize);
+    // Every value takes at least two bytes of text ("1 "), so a short file that declares
+    // many cells cannot make this reserve more than its own size.
+    let mut data = Vec::with_capacity((cells as usize).min(text.len() / 2 + 1));
     let mut last_line = 1;
     for (i, line) in lines {
         last_line = i + 1;
