@@ -652,7 +652,15 @@ fn a_time_series_over_the_memory_budget_is_refused_before_running() {
                 step_s, a shorter [policy] deadline_days or fewer seasons";
     check_refused(&s, &["check", "m.toml"], want);
     check_refused(&s, &["run", "m.toml", "--out", "out"], want);
-    assert!(!s.path("out/summary.json").exists());
+    assert!(!s.path("out/summary.json").exists()); // A step of 1e-300 s: more steps than a u64 counts, still one clear message.
+    let text = std::fs::read_to_string(s.path("m.toml")).unwrap();
+    s.write(
+        "tiny.toml",
+        text.replace("step_s = 0.001", "step_s = 1e-300"),
+    );
+    let (code, err) = s.run(&["check", "tiny.toml"]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("up to 18446744073709551615 steps"), "{err}");
 }
 
 /// A start on top of a pillar: the route cannot be planned, so every season is

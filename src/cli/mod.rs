@@ -106,7 +106,8 @@ pub fn check_memory(
 /// Refuses a mission whose seasons' time series (one sample per step up to the deadline,
 /// every season held at once) exceed the memory budget, before anything runs.
 pub fn check_series_memory(path: &Path, m: &sunward::mission::Mission) -> Result<(), Error> {
-    let steps = (m.policy.deadline_s / m.step_s).ceil().min(u64::MAX as f64) as u64 + 1;
+    // `as` saturates: a step of 1e-300 s gives u64::MAX steps, not a wrap.
+    let steps = ((m.policy.deadline_s / m.step_s).ceil() as u64).saturating_add(1);
     let seasons = m.seasons.len() as u64;
     let sample = std::mem::size_of::<sunward::mission::sim::Sample>() as u64;
     let bytes = sunward::limits::time_series_bytes(steps, seasons, sample);
