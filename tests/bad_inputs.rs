@@ -844,3 +844,79 @@ fn every_committed_bad_input_is_refused_without_a_panic() {
         root.display()
     );
 }
+
+// ---------------------------------------------------------------------------------------
+// Inputs the fuzzers (fuzz/) turned up, kept in tests/data/bad/fuzz/ (README there).
+// None crashed; each had a message that did not say what was wrong.
+
+/// `sunward terrain info` on the kept input `name` (copied into a scratch folder) gives
+/// exit code 2 and exactly `want` after the file name.
+fn check_fuzz_found(name: &str, extra: &[&str], want: &str) {
+    let s = Scratch::new();
+    let kept = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/data/bad/fuzz");
+    std::fs::copy(kept.join(name), s.path(name)).unwrap();
+    let mut args = vec!["terrain", "info", name];
+    args.extend(extra);
+    check_refused(&s, &args, &format!("{name}: {want}"));
+}
+
+/// A BigTIFF header whose first-IFD offset is beyond what a seek can reach: the
+/// operating system's "Invalid argument (os error 22)" came through as the message.
+#[test]
+fn fuzz_found_bigtiff_offset_beyond_addressable() {
+    check_fuzz_found(
+        "bigtiff_ifd_offset_beyond_addressable.tif",
+        &[],
+        "not a readable GeoTIFF: the file ends before the data its header declares \
+         (truncated or damaged). Fix: check that the file is complete and is a TIFF \
+         (gdalinfo shows it)",
+    );
+}
+
+/// A ModelPixelScale of 3e-312 map units: read as a grid of 3e-312 m cells, whose slopes
+/// are all 90°; now refused by the cell-size check.
+#[test]
+fn fuzz_found_denormal_pixel_height() {
+    check_fuzz_found(
+        "denormal_pixel_height.tif",
+        &[],
+        "cells of 420000.00036621094 x 3.14055377063e-312 m, outside 0.0001 m to 1000000 \
+         m. Fix: check the cell size in the header or the georeference tags",
+    );
+}
+
+/// A GDAL_NODATA tag of another TIFF type than ASCII: the message held the decoder's
+/// debug dump (`List([])`).
+#[test]
+fn fuzz_found_nodata_tag_not_text() {
+    check_fuzz_found(
+        "nodata_tag_not_text.tif",
+        &[],
+        "not a readable GeoTIFF: the GDAL_NODATA tag (42113) is not text. Fix: set a \
+         numeric no-data value with gdal_edit.py -a_nodata VALUE",
+    );
+}
+
+/// A chunk before IHDR: the message held the decoder's debug dump of the chunk type.
+#[test]
+fn fuzz_found_png_chunk_before_header() {
+    check_fuzz_found(
+        "png_chunk_before_header.png",
+        &["--cell-m", "1"],
+        "not a readable PNG heightmap: the chunk sequence is damaged (a chunk out of place, \
+         or a wrong chunk length). Fix: check that the file is a complete PNG",
+    );
+}
+
+/// One byte that is not UTF-8 in a .asc: "reading failed: stream did not contain valid
+/// UTF-8", with no fix.
+#[test]
+fn fuzz_found_ascii_grid_that_is_not_text() {
+    check_fuzz_found(
+        "not_text.asc",
+        &[],
+        "not a readable ESRI ASCII grid: byte 1 is not text (the file is not ASCII or \
+         UTF-8). Fix: an ESRI ASCII grid is plain text; check that this is not a binary \
+         raster with the wrong extension",
+    );
+}

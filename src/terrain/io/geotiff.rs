@@ -51,7 +51,14 @@ pub fn read_from<R: Read + Seek>(
     let file_len = stream_len(&mut r, path)?;
     let bad = |e: tiff::TiffError| {
         let detail = match &e {
-            tiff::TiffError::IoError(io) if io.kind() == std::io::ErrorKind::UnexpectedEof => {
+            // A seek past what the platform can address (EINVAL) is an offset beyond the
+            // end of the file too.
+            tiff::TiffError::IoError(io)
+                if matches!(
+                    io.kind(),
+                    std::io::ErrorKind::UnexpectedEof | std::io::ErrorKind::InvalidInput
+                ) =>
+            {
                 "the file ends before the data its header declares (truncated or damaged)"
                     .to_string()
             }
@@ -334,9 +341,17 @@ fn read_georef<R: Read + Seek>(
 }
 
 fn parse_nodata(v: Value, path: &Path) -> Result<f64, TerrainError> {
+    let not_text = || {
+        TerrainError::malformed(
+            path,
+            FORMAT,
+            "the GDAL_NODATA tag (42113) is not text",
+            "set a numeric no-data value with gdal_edit.py -a_nodata VALUE",
+        )
+    };
     let text = match v {
         Value::Ascii(s) => s,
-        other => format!("{other:?}"),
+        _ => return Err(not_text()),
     };
     let t = text.trim_matches(|c: char| c.is_whitespace() || c == '\0');
     let parsed = match t.to_ascii_lowercase().as_str() {

@@ -49,7 +49,7 @@ pub fn read_from<R: BufRead + Seek>(
         TerrainError::malformed(
             path,
             FORMAT,
-            e.to_string(),
+            decoding_detail(&e),
             "check that the file is a complete PNG",
         )
     };
@@ -113,6 +113,21 @@ pub fn read_from<R: BufRead + Seek>(
         data,
         GeoRef::local(scale.cell_m),
     ))
+}
+
+/// The decoder's complaint in words: its own text, without the debug dump of chunk
+/// types it prints for a damaged chunk sequence.
+fn decoding_detail(e: &png::DecodingError) -> String {
+    let text = e.to_string();
+    match e {
+        png::DecodingError::LimitsExceeded => {
+            "the decoded image would need more memory than the cell limit allows".into()
+        }
+        _ if text.contains("ChunkType {") => {
+            "the chunk sequence is damaged (a chunk out of place, or a wrong chunk length)".into()
+        }
+        _ => text.trim_end_matches('.').to_string(),
+    }
 }
 
 /// Refuses a cell size or vertical mapping that would make every elevation meaningless.
