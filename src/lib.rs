@@ -1,6 +1,6 @@
 //! sunward — energy and mission feasibility planning for solar-powered mobile robots.
 //!
-//! The data flow, in pipeline order (modules marked *planned* are not built yet):
+//! The data flow, in pipeline order:
 //!
 //! ```text
 //! DEM file ──► terrain::io (GeoTIFF / 16-bit PNG / ESRI ASCII → Grid<f32>, NaN = no-data)
@@ -11,7 +11,7 @@
 //!                 │
 //!          sun (position, irradiance, shading, PV) ─► battery (pack, thermal, loads)
 //!                 │
-//!          mission::{spec, resolve} ─► mission::sim ─► report / study   (study planned)
+//!          mission::{spec, resolve} ─► mission::prepare ─► mission::sim ─► report / study
 //! ```
 //!
 //! - [`units`]: the only unit conversions (deg↔rad, Wh↔J, °C↔K).
@@ -46,6 +46,8 @@
 //! - [`sun::shading`]: terrain horizon and sky-view factor applied to irradiance.
 //! - [`sun::panel`]: PV power with cell temperature and mounts.
 //! - [`sun::series`]: clear-sky time series.
+//! - [`sun::measured`]: a measured weather record's irradiance at any instant.
+//! - [`sun::clearness_mc`]: seeded daily clear-sky index draws (Beta, Marsaglia-Tsang).
 //! - [`battery::pack`]: Rint pack model with charge limits and exact bookkeeping.
 //! - [`battery::chemistry`]: LFP and NMC presets.
 //! - [`battery::thermal`]: lumped thermal node with thermostat heater.
@@ -56,7 +58,15 @@
 //! - [`mission::resolve`]: the checked mission of the stages' types, every problem listed.
 //! - [`mission::sim`]: the season simulation (drive, park, charge, sleep).
 //! - [`mission::ledger`]: energy bookkeeping that closes.
+//! - [`mission::prepare`]: from a checked mission to a simulation setup.
+//! - [`mission::runner`]: the seasons of a mission in parallel.
+//! - [`study::vary`]: the keys and values a trade study varies.
+//! - [`study::sweep`]: sweeps over mission keys, shards.
+//! - [`study::size`]: battery and panel sizing by bisection.
+//! - [`study::montecarlo`]: the weather Monte Carlo (N sampled runs per season).
 //! - [`report`]: output serialisers and the one atomic writer.
+//! - [`report::sweep`]: sweep.csv and the merging of shards.
+//! - [`report::heatmap`]: a sweep's heatmap.
 //! - [`limits`]: the memory budget checked before the large per-cell allocations.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
@@ -73,6 +83,7 @@ pub mod mission;
 pub mod plan;
 pub mod progress;
 pub mod report;
+pub mod study;
 pub mod sun;
 pub mod terrain;
 pub mod units;

@@ -123,6 +123,8 @@ fn setup<'a>(
             albedo: 0.2,
             wind_m_s: 1.0,
             clearness_monthly: [1.0; 12],
+            clearness_daily: None,
+            weather: None,
         },
         horizon: None,
         ambient: &s.ambient,
@@ -130,6 +132,7 @@ fn setup<'a>(
         policy,
         step_s: 60.0,
         stops: Vec::new(),
+        start_local_h: 0.0,
     }
 }
 

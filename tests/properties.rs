@@ -187,6 +187,8 @@ fn setup<'a>(c: &Case, route: &'a Route, rover: &'a Rover, s: &'a Stages) -> Sim
             albedo: 0.2,
             wind_m_s: 2.0,
             clearness_monthly: [1.0; 12],
+            clearness_daily: None,
+            weather: None,
         },
         horizon: None,
         ambient: &s.ambient,
@@ -205,6 +207,7 @@ fn setup<'a>(c: &Case, route: &'a Route, rover: &'a Rover, s: &'a Stages) -> Sim
         },
         step_s: 60.0,
         stops: Vec::new(),
+        start_local_h: 0.0,
     }
 }
 

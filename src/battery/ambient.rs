@@ -131,6 +131,33 @@ impl AmbientSeries {
         Ok(AmbientSeries { times, temps_c })
     }
 
+    /// A record from instants and temperatures (e.g. a weather file's `temp_air_c`
+    /// column); times strictly increasing, at least two, temperatures -150..150 degC.
+    pub fn from_points(
+        times: Vec<DateTime<Utc>>,
+        temps_c: Vec<f64>,
+    ) -> Result<AmbientSeries, BatteryError> {
+        if times.len() != temps_c.len() || times.len() < 2 {
+            return Err(series_err(1, "fewer than two temperatures".into()));
+        }
+        if let Some(i) = times.windows(2).position(|w| w[1] <= w[0]) {
+            return Err(series_err(
+                i + 2,
+                "time is not after the previous row".into(),
+            ));
+        }
+        if let Some(i) = temps_c
+            .iter()
+            .position(|t| !(t.is_finite() && (-150.0..=150.0).contains(t)))
+        {
+            return Err(series_err(
+                i + 1,
+                format!("temperature {} is not -150..150 degC", temps_c[i]),
+            ));
+        }
+        Ok(AmbientSeries { times, temps_c })
+    }
+
     /// Whether `t` lies within the record.
     pub fn covers(&self, t: DateTime<Utc>) -> bool {
         self.times[0] <= t && t <= self.times[self.times.len() - 1]

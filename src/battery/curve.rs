@@ -92,7 +92,10 @@ impl Curve {
             return self.cum[n - 1] + self.ys[n - 1] * (x - self.xs[n - 1]);
         }
         let i = self.segment(x);
-        self.cum[i] + 0.5 * (self.ys[i] + self.eval(x)) * (x - self.xs[i])
+        // eval(x) on the same segment, without a second search.
+        let t = (x - self.xs[i]) / (self.xs[i + 1] - self.xs[i]);
+        let y = self.ys[i] + t * (self.ys[i + 1] - self.ys[i]);
+        self.cum[i] + 0.5 * (self.ys[i] + y) * (x - self.xs[i])
     }
 
     /// Mean of the curve over `[a, b]` (either order); the value at `a` when `a == b`.

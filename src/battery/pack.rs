@@ -419,6 +419,17 @@ impl Pack {
         self.ocv_pack.mean(soc_a, soc_b)
     }
 
+    /// [`Self::mean_ocv_v`] with the OCV integral at either end given when known (the
+    /// same arithmetic, so the same result to the bit).
+    fn cached_mean_ocv_v(&self, a: f64, b: f64, ia: Option<f64>, ib: Option<f64>) -> f64 {
+        if (b - a).abs() < 1e-12 {
+            return self.ocv_pack.eval(0.5 * (a + b));
+        }
+        let ia = ia.unwrap_or_else(|| self.ocv_pack.integral_to(a));
+        let ib = ib.unwrap_or_else(|| self.ocv_pack.integral_to(b));
+        (ib - ia) / (b - a)
+    }
+
     /// Pack DC resistance at `soc` and cell temperature `temp_c`, ohm.
     pub fn resistance_ohm(&self, soc: f64, temp_c: f64) -> f64 {
         self.r25_ohm * arrhenius_factor(self.ea_j_mol, temp_c) * low_soc_factor(self.low_soc_k, soc)
@@ -517,6 +528,8 @@ impl Pack {
         let i_max = p.max_discharge_c * self.capacity_ah;
         let mut flags = PackFlags::default();
         let (mut v, mut i, mut soc1, mut on_s) = (self.ocv_v(s.soc), 0.0, s.soc, req.dt_s);
+        // The OCV integral at the step's start, the same in every iteration.
+        let i_start = self.ocv_pack.integral_to(s.soc);
         for _ in 0..MEAN_OCV_MAX_ITER {
             let (p_w, f) = self.discharge_power(v, r, i_max, req.power_w);
             flags = f;
@@ -527,7 +540,7 @@ impl Pack {
             } else {
                 (soc_end, req.dt_s, false)
             };
-            let v_new = self.mean_ocv_v(soc1, s.soc);
+            let v_new = self.cached_mean_ocv_v(soc1, s.soc, None, Some(i_start));
             let done = (v_new - v).abs() < MEAN_OCV_TOL_V;
             v = v_new;
             if done {
@@ -602,6 +615,7 @@ impl Pack {
         let eta = p.coulombic_efficiency;
         let mut flags = PackFlags::default();
         let (mut v, mut i, mut soc1, mut on_s) = (self.ocv_v(s.soc), 0.0, s.soc, req.dt_s);
+        let i_start = self.ocv_pack.integral_to(s.soc);
         for _ in 0..MEAN_OCV_MAX_ITER {
             let (p_w, f) = self.charge_power(v, r, i_max, -req.power_w);
             flags = f;
@@ -612,7 +626,7 @@ impl Pack {
             } else {
                 (soc_end, req.dt_s, false)
             };
-            let v_new = self.mean_ocv_v(s.soc, soc1);
+            let v_new = self.cached_mean_ocv_v(s.soc, soc1, Some(i_start), None);
             let done = (v_new - v).abs() < MEAN_OCV_TOL_V;
             v = v_new;
             if done {

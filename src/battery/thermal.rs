@@ -65,6 +65,11 @@ pub struct ThermalParams {
     pub operating_min_c: f64,
     /// Hottest for operation, degC. Default 60 degC (common practice).
     pub operating_max_c: f64,
+    /// Share of the rover's electronics power (hotel and payload) dissipated inside the
+    /// battery box, fraction 0 to 1. Default 0.3: an assumption with no source, for
+    /// electronics mostly outside an insulated battery box. Set 1 when the avionics
+    /// share the box with the cells, 0 when the box holds only cells.
+    pub electronics_heat_share: f64,
 }
 
 impl Default for ThermalParams {
@@ -79,6 +84,7 @@ impl Default for ThermalParams {
             storage_min_c: -20.0,
             operating_min_c: -20.0,
             operating_max_c: 60.0,
+            electronics_heat_share: 0.3,
         }
     }
 }
@@ -165,6 +171,12 @@ impl ThermalNode {
             p.heater_power_w,
             (0.0, 1e4),
             "0 to 10000 W",
+        )?;
+        t(
+            "electronics_heat_share",
+            p.electronics_heat_share,
+            (0.0, 1.0),
+            "a fraction from 0 to 1",
         )?;
         for (k, v) in [
             ("heater_on_c", p.heater_on_c),

@@ -9,7 +9,7 @@ use clap::Args;
 use sunward::mission::resolve::{
     keep_out_off_grid, points_in_keep_out, points_off_dem, DrivingHours, Mission, Sky,
 };
-use sunward::mission::{check, Problem};
+use sunward::mission::{check, prepare, Problem};
 use sunward::terrain::io::read_dem;
 use sunward::units::rad_to_deg;
 use sunward::Error;
@@ -49,6 +49,9 @@ pub fn run(a: CheckArgs) -> Result<(), Error> {
     if !off.is_empty() {
         return Err(fail(off));
     }
+    // A weather file is parsed, and must cover every season's run.
+    let models = super::run::load_models(&mission)?;
+    prepare::check_weather_span(&mission, &models, &mission.seasons)?;
     say!(
         "{}",
         summary(&a.mission, &mission, dem.width(), dem.height())

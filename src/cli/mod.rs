@@ -6,6 +6,7 @@ mod progress;
 mod route;
 mod run;
 mod sun;
+mod sweep;
 mod terrain;
 
 use std::path::{Path, PathBuf};
@@ -42,6 +43,12 @@ enum Command {
     Route(route::RouteArgs),
     /// Validate a mission file without running it: every problem with line and column.
     Check(check::CheckArgs),
+    /// Run a mission over a grid of key values (one row per case in sweep.csv).
+    Sweep(sweep::SweepArgs),
+    /// Join the outputs of `sweep --shard` runs into one sweep.
+    Merge(sweep::MergeArgs),
+    /// The smallest battery (or panel area) that passes every season.
+    Size(sweep::SizeArgs),
 }
 
 /// How to read a DEM: the flags every command that takes a DEM shares.
@@ -181,6 +188,9 @@ pub fn run(cli: Cli) -> Result<(), Error> {
         Command::Route(a) => route::run(a),
         Command::Run(a) => run::run(a),
         Command::Check(a) => check::run(a),
+        Command::Sweep(a) => sweep::run_sweep(a),
+        Command::Merge(a) => sweep::run_merge(a),
+        Command::Size(a) => sweep::run_size(a),
     }
 }
 

@@ -5,25 +5,24 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
-use sunward::battery::ambient::Ambient;
-use sunward::battery::pack::Pack;
-use sunward::battery::thermal::ThermalNode;
-use sunward::mission::resolve::{DrivingHours, Mission, Overnight, Sky};
+use sunward::mission::prepare::{self, select_seasons, sim_setup, Ground, Models};
+use sunward::mission::resolve::{Mission, Season, Sky};
 use sunward::mission::runner::{run_seasons_with, SeasonResult};
-use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::{check, Problem};
-use sunward::plan::route::{leg_costs, locate};
-use sunward::plan::{plan_route, CellFlags, Planner, Route, RoutePoint};
+use sunward::plan::route::locate;
+use sunward::plan::{Planner, Route};
 use sunward::report::atomic::write_atomic;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
-use sunward::report::json::{summary, summary_json};
+use sunward::report::json::{monte_carlo_json, summary, summary_json};
 use sunward::report::map::route_map_rgb;
+use sunward::report::montecarlo_plot::monte_carlo_chart;
 use sunward::report::plot::{render_png, render_svg};
 use sunward::report::season_plot::{season_chart, seasons_chart};
-use sunward::sun::position::{delta_t_model_s, Observer};
+use sunward::study::montecarlo::{monte_carlo, SeasonMonteCarlo, DEFAULT_SEED};
+use sunward::sun::clearness_mc::DailyClearness;
 use sunward::terrain::io::png;
-use sunward::terrain::{hillshade, horizon, io::read_dem, Dem};
+use sunward::terrain::{hillshade, horizon, Dem};
 use sunward::vehicle::plan_model::RoverStepModel;
 use sunward::Error;
 
@@ -46,6 +45,40 @@ pub struct RunArgs {
     /// No progress display.
     #[arg(long, short = 'q')]
     quiet: bool,
+    /// Also run N sampled-weather runs per season (daily clear-sky index drawn from the
+    /// monthly `clearness` and `clearness_sd` of [weather], sky = "clearness").
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=100_000))]
+    monte_carlo: Option<u32>,
+    /// Seed of the Monte Carlo draws (same seed, same result).
+    #[arg(long, value_name = "S", requires = "monte_carlo", default_value_t = DEFAULT_SEED)]
+    seed: u64,
+}
+
+/// The weather Monte Carlo of a run.
+struct MonteCarlo {
+    runs: usize,
+    seed: u64,
+    results: Vec<SeasonMonteCarlo>,
+}
+
+/// The daily laws of the mission's sky for `--monte-carlo` (refused unless the mission
+/// gives monthly clearness means and sds).
+fn daily_laws(path: &Path, m: &Mission) -> Result<DailyClearness, Error> {
+    let (Sky::Clearness { monthly, .. }, Some(sd)) = (&m.weather.sky, &m.weather.clearness_sd)
+    else {
+        return Err(Error::Usage(format!(
+            "{}: --monte-carlo samples the daily clear-sky index from the monthly statistics, \
+             which this mission does not give. Fix: set [weather] sky = \"clearness\" with \
+             the twelve monthly clearness means and clearness_sd (one number or twelve)",
+            path.display()
+        )));
+    };
+    DailyClearness::new(monthly, sd).map_err(|e| {
+        Error::Usage(format!(
+            "{}: [weather] clearness_sd: {e}. Fix: give a smaller sd",
+            path.display()
+        ))
+    })
 }
 
 /// Reads and checks the mission file, listing every problem on failure.
@@ -62,143 +95,28 @@ pub fn load_mission(path: &Path) -> Result<Mission, Error> {
     })
 }
 
-/// Cells closed by the mission's keep-out raster (cells with data are closed).
-fn flags_for(m: &Mission, dem: &Dem) -> Result<CellFlags, Error> {
-    let mut flags = CellFlags::from_dem(dem);
-    if let Some(path) = &m.terrain.keep_out_path {
-        let mask = read_dem(path, &m.terrain.read)?;
-        if (mask.width(), mask.height()) != (dem.width(), dem.height()) {
-            return Err(Error::Usage(format!(
-                "{}: the keep-out raster is {} x {} cells, the terrain {} x {}. Fix: give a \
-                 keep-out raster on the terrain's grid",
-                path.display(),
-                mask.width(),
-                mask.height(),
-                dem.width(),
-                dem.height()
-            )));
+/// The mission's checked models, with the weather file read when the mission has one.
+/// The text of the mission's weather file, when it has one (`sky = "csv"`).
+pub fn weather_text(m: &Mission) -> Result<Option<String>, Error> {
+    match &m.weather.sky {
+        Sky::Csv { path } => {
+            std::fs::read_to_string(path)
+                .map(Some)
+                .map_err(|source| Error::Input {
+                    path: path.clone(),
+                    source,
+                })
         }
-        for (i, v) in mask.data().iter().enumerate() {
-            if !v.is_nan() {
-                flags.block(i, sunward::plan::Blocked::KeepOut);
-            }
-        }
-    }
-    Ok(flags)
-}
-
-/// The route: start, waypoints, the sites in visiting order, goal.
-fn route_points(m: &Mission, order: &[usize]) -> Vec<RoutePoint> {
-    let mut pts = vec![m.route.start.point.clone()];
-    pts.extend(m.route.waypoints.iter().map(|w| w.point.clone()));
-    pts.extend(order.iter().map(|&i| m.route.sites[i].place.point.clone()));
-    pts.push(m.route.goal.point.clone());
-    pts
-}
-
-/// The cheapest order of the unordered sites on the open path from the last waypoint
-/// (or the start) to the goal: pairwise route costs, then `plan::sites` on a matrix whose
-/// "return to base" legs are the legs to the goal, so the optimal tour is the optimal
-/// open path (Held-Karp, exact, up to 10 sites). Without any complete order, the file's. Without any complete order, the file's.
-fn site_order<M: sunward::plan::StepModel + ?Sized>(
-    m: &Mission,
-    planner: &Planner<'_, M>,
-) -> Result<Vec<usize>, Error> {
-    use sunward::plan::sites::{graph_from_matrix, order_sites, OrderOptions};
-    let n = m.route.sites.len();
-    if n <= 1 {
-        return Ok((0..n).collect());
-    }
-    let anchor = m
-        .route
-        .waypoints
-        .last()
-        .unwrap_or(&m.route.start)
-        .point
-        .clone();
-    let mut nodes = vec![anchor];
-    nodes.extend(m.route.sites.iter().map(|s| s.place.point.clone()));
-    let cells: Vec<usize> = nodes
-        .iter()
-        .map(|p| locate(planner, p))
-        .collect::<Result<_, _>>()?;
-    // Column 0 is the goal instead of the leg's start: the tour's return leg.
-    let mut targets = cells.clone();
-    targets[0] = locate(planner, &m.route.goal.point)?;
-    let costs = leg_costs(planner, &cells, &targets);
-    let names: Vec<String> = std::iter::once("the leg's start".to_string())
-        .chain(m.route.sites.iter().map(|s| s.place.point.label.clone()))
-        .collect();
-    // When some leg cannot be driven no order exists; keep the file's order and let the
-    // route planner explain which limit closes the way.
-    let tour = graph_from_matrix(&costs, Some(&names))
-        .and_then(|g| order_sites(&g, &OrderOptions::default()));
-    Ok(match tour {
-        Ok(t) => t.order[1..t.order.len() - 1]
-            .iter()
-            .map(|&i| i - 1)
-            .collect(),
-        Err(_) => (0..n).collect(),
-    })
-}
-
-/// The payload stops: the profile row where the route reaches each site, walking the
-/// route points in order (start, waypoints, sites, goal).
-fn site_stops<M: sunward::plan::StepModel + ?Sized>(
-    m: &Mission,
-    planner: &Planner<'_, M>,
-    route: &Route,
-    order: &[usize],
-) -> Vec<Stop> {
-    let w = planner.dem.width();
-    let mut from = 0;
-    let mut stops = Vec::new();
-    let points = route_points(m, order);
-    let first_site = 1 + m.route.waypoints.len();
-    for (i, p) in points.iter().enumerate().skip(1) {
-        let Ok(cell) = locate(planner, p) else {
-            continue;
-        };
-        let Some(k) = route.profile[from..]
-            .iter()
-            .position(|r| r.row * w + r.col == cell)
-        else {
-            continue;
-        };
-        from += k;
-        if i >= first_site && i < first_site + m.route.sites.len() {
-            stops.push(Stop {
-                row: from,
-                duration_s: m.route.sites[order[i - first_site]].payload_s,
-            });
-        }
-    }
-    stops
-}
-
-fn policy(m: &Mission) -> Policy {
-    let drive_hours = match m.policy.driving {
-        DrivingHours::Daylight => DriveHours::Daylight,
-        DrivingHours::Window { start_h, end_h } => DriveHours::LocalWindow { start_h, end_h },
-        DrivingHours::AnyTime => DriveHours::Always,
-    };
-    Policy {
-        drive_hours,
-        min_soc_to_drive: m.policy.min_soc_to_drive,
-        resume_soc: m.policy.park_and_charge_to_soc,
-        deadline_s: m.policy.deadline_s,
-        end: EndCondition::Arrival,
-        sleep_outside_hours: m.policy.overnight == Overnight::Sleep,
+        _ => Ok(None),
     }
 }
 
-/// Share of the hotel and payload power that heats the battery box: 0.3 is an
-/// assumption with no source (electronics mostly outside an insulated battery box); it
-/// belongs in the mission's `[thermal]` table once the file has the key.
-const ELECTRONICS_HEAT_SHARE: f64 = 0.3;
+pub fn load_models(m: &Mission) -> Result<Models, Error> {
+    Models::with_weather(m, weather_text(m)?.as_deref())
+}
 
 pub fn run(a: RunArgs) -> Result<(), Error> {
-    let feasible = run_mission(&a.mission, &a.out, &a.season, a.quiet)?;
+    let feasible = run_with(&a)?;
     if a.fail_on_infeasible && !feasible {
         std::process::exit(1);
     }
@@ -212,51 +130,49 @@ pub fn run_mission(
     only: &[String],
     quiet: bool,
 ) -> Result<bool, Error> {
-    let a = RunArgs {
+    run_with(&RunArgs {
         mission: mission.to_path_buf(),
         out: out.to_path_buf(),
         season: only.to_vec(),
         fail_on_infeasible: false,
         quiet,
-    };
+        monte_carlo: None,
+        seed: DEFAULT_SEED,
+    })
+}
+
+fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let m = load_mission(&a.mission)?;
+    let laws = match a.monte_carlo {
+        Some(_) => Some(daily_laws(&a.mission, &m)?),
+        None => None,
+    };
     std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
         path: a.out.clone(),
         source,
     })?;
     super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
-    if let Sky::Csv { path } = &m.weather.sky {
-        return Err(Error::Usage(format!(
-            "{}: weather files are not used by the simulation yet. Fix: use the clear sky \
-             ([weather] sky = \"clear\") for now",
-            path.display()
-        )));
-    }
     super::check_series_memory(&a.mission, &m)?;
-    let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
-    let cells = dem.len() as u64;
+    let models = load_models(&m)?;
+    let ground = Ground::load(&m)?;
+    let cells = ground.dem.len() as u64;
     let need = sunward::limits::planner_bytes(cells)
         + sunward::limits::horizon_bytes(cells, horizon::DEFAULT_SECTORS as u64);
     let what = "the route planner's arrays and the horizon maps";
-    super::check_memory(&m.terrain.read, &m.terrain.dem_path, &dem, what, need)?;
-    let flags = flags_for(&m, &dem)?;
-    let model = RoverStepModel::new(&m.rover);
-    let planner = Planner {
-        dem: &dem,
-        flags: &flags,
-        model: &model,
-        limits: m.route.tilt,
-        connectivity: m.route.connectivity,
-        objective: m.route.objective,
+    super::check_memory(
+        &m.terrain.read,
+        &m.terrain.dem_path,
+        &ground.dem,
+        what,
+        need,
+    )?;
+    let seasons = select_seasons(&m, &a.season)?;
+    prepare::check_weather_span(&m, &models, &seasons)?;
+    let planned = match prepare::plan(&m, &ground)? {
+        Ok(p) => p,
+        Err(e) => return unplannable(a, &m, &seasons, &e),
     };
-    let order = site_order(&m, &planner)?;
-    let route = match plan_route(&planner, &route_points(&m, &order)) {
-        Ok(r) => r,
-        Err(e @ sunward::plan::PlanError::Unreachable { .. }) => {
-            return unplannable(&a, &m, &e);
-        }
-        Err(e) => return Err(e.into()),
-    };
+    let route = &planned.route;
     if !a.quiet {
         eprintln!(
             "route: {:.0} m, {:.0} Wh, {:.1} h of driving",
@@ -268,87 +184,43 @@ pub fn run_mission(
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let horizons = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, progress)?;
-    let stops = site_stops(&m, &planner, &route, &order);
-    let results = simulate_seasons(&m, &route, &stops, &horizons, &a.season, progress)?;
+    let horizons = horizon::horizon_map(&ground.dem, horizon::DEFAULT_SECTORS, progress)?;
+    let setup = sim_setup(&m, &models, &planned, Some(&horizons));
+    let results = run_seasons_with(&setup, &seasons, progress)
+        .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+    let mc = match (a.monte_carlo, &laws) {
+        (Some(n), Some(laws)) => {
+            if !a.quiet {
+                eprintln!("weather Monte Carlo: {n} runs per season, seed {}", a.seed);
+            }
+            let results = monte_carlo(&setup, &seasons, laws, n as usize, a.seed, progress)
+                .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+            Some(MonteCarlo {
+                runs: n as usize,
+                seed: a.seed,
+                results,
+            })
+        }
+        _ => None,
+    };
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
-    write_outputs(mission_dir, &a.out, &m, &dem, &route, &planner, &results)?;
-    print_verdicts(&m, &results, &a.out);
-    Ok(results.iter().all(|r| r.summary.feasible))
-}
-
-fn simulate_seasons(
-    m: &Mission,
-    route: &Route,
-    stops: &[Stop],
-    horizons: &horizon::HorizonMap,
-    only: &[String],
-    progress: &dyn sunward::progress::Progress,
-) -> Result<Vec<SeasonResult>, Error> {
-    let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
-    let pack = Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?;
-    let thermal = ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?;
-    let ambient = Ambient::Monthly(m.weather.climate.clone());
-    let (linke, clearness_monthly) = match &m.weather.sky {
-        Sky::ClearSky(l) => (*l, [1.0; 12]),
-        Sky::Clearness { linke, monthly } => (*linke, *monthly),
-        Sky::Csv { .. } => unreachable!("refused before"),
-    };
-    let observer = Observer::new(
-        m.site.latitude_rad,
-        m.site.longitude_rad,
-        m.site.elevation_m,
-    )
-    .map_err(|e| stage(e.to_string()))?;
-    let year = m
-        .seasons
-        .first()
-        .map_or(2027, |s| chrono::Datelike::year(&s.date));
-    let setup = SimSetup {
+    let model = RoverStepModel::new(&m.rover);
+    let planner = ground.planner(&m, &model);
+    write_outputs(
+        mission_dir,
+        &a.out,
+        &m,
+        &ground.dem,
         route,
-        rover: &m.rover,
-        pack: &pack,
-        initial_soc: 1.0,
-        thermal: &thermal,
-        initial_box_temp_c: None,
-        electronics_heat_share: ELECTRONICS_HEAT_SHARE,
-        loads: &m.loads,
-        panel: &m.panels.panel,
-        mount: m.panels.mount,
-        sky: SkySetup {
-            observer,
-            delta_t_s: delta_t_model_s(f64::from(year) + 0.5),
-            linke,
-            sky_model: m.weather.sky_model,
-            albedo: m.weather.albedo,
-            wind_m_s: m.weather.wind_m_s,
-            clearness_monthly,
-        },
-        horizon: Some(horizons),
-        ambient: &ambient,
-        utc_offset_s: i64::from(m.site.utc_offset.local_minus_utc()),
-        policy: policy(m),
-        step_s: m.step_s,
-        stops: stops.to_vec(),
-    };
-    let seasons: Vec<_> = m
-        .seasons
-        .iter()
-        .filter(|s| only.is_empty() || only.iter().any(|o| s.name.contains(o.as_str())))
-        .cloned()
-        .collect();
-    if seasons.is_empty() {
-        return Err(Error::Usage(format!(
-            "no season matches --season {:?}; the mission has: {}",
-            only,
-            m.seasons
-                .iter()
-                .map(|s| s.name.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        )));
+        &planner,
+        &results,
+        mc.as_ref(),
+    )?;
+    print_verdicts(&m, &results, &a.out);
+    if let Some(mc) = &mc {
+        print_monte_carlo(mc, m.battery.reserve_soc);
     }
-    run_seasons_with(&setup, &seasons, progress).map_err(|e| stage(e.to_string()))
+    Ok(results.iter().all(|r| r.summary.feasible))
 }
 
 fn slug(name: &str) -> String {
@@ -364,60 +236,15 @@ fn slug(name: &str) -> String {
 }
 
 /// The route cannot be planned: every season is infeasible, stranded at its start by
-/// the limit that closes the way (`tilt` for pitch and roll, `traction` for traction and
-/// sinkage, `terrain` for keep-out, no-data, roughness or the grid edge). Writes
+/// the limit that closes the way (see `sunward::mission::prepare::unplannable`). Writes
 /// summary.json only.
-fn unplannable(a: &RunArgs, m: &Mission, e: &sunward::plan::PlanError) -> Result<bool, Error> {
-    use sunward::mission::ledger::Ledger;
-    use sunward::mission::runner::local_midnight;
-    use sunward::mission::sim::{Run, Stranded};
-    use sunward::mission::verdict::summarize;
-    use sunward::plan::Blocked;
-    let sunward::plan::PlanError::Unreachable {
-        detail, nearest_xy, ..
-    } = e
-    else {
-        unreachable!("called for unreachable routes only")
-    };
-    let cause = match detail.closed_by.first().map(|c| c.0) {
-        Some(Blocked::PitchUp | Blocked::PitchDown | Blocked::Roll) => "tilt",
-        Some(Blocked::Traction | Blocked::Sinkage) => "traction",
-        _ => "terrain",
-    };
-    let offset = i64::from(m.site.utc_offset.local_minus_utc());
-    let results: Vec<SeasonResult> = m
-        .seasons
-        .iter()
-        .filter(|s| a.season.is_empty() || a.season.iter().any(|o| s.name.contains(o.as_str())))
-        .map(|season| {
-            let start = local_midnight(season.date, offset);
-            let run = Run {
-                samples: Vec::new(),
-                ledger: Ledger::default(),
-                arrival: None,
-                stranded: Some(Stranded {
-                    time: start,
-                    x: nearest_xy.0,
-                    y: nearest_xy.1,
-                    cause,
-                    detail: e.to_string(),
-                }),
-                min_soc: (1.0, start),
-                hours_below_reserve: 0.0,
-                storage_breach: None,
-                distance_m: 0.0,
-                in_hours_s: 0.0,
-                charging_hold_s: 0.0,
-            };
-            let summary = summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);
-            SeasonResult {
-                season: season.clone(),
-                run,
-                summary,
-                days: Vec::new(),
-            }
-        })
-        .collect();
+fn unplannable(
+    a: &RunArgs,
+    m: &Mission,
+    seasons: &[Season],
+    e: &sunward::plan::PlanError,
+) -> Result<bool, Error> {
+    let results = prepare::unplannable(m, seasons, e);
     let inputs = serde_json::json!({"route": "not plannable", "reason": e.to_string()});
     let doc = summary(&m.site.name, &results, inputs);
     let text = summary_json(&doc);
@@ -451,11 +278,18 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
                 "NREL SPA".into(),
                 "Reda and Andreas, NREL/TP-560-34302",
             ),
-            a(
-                "irradiance",
-                "clear sky, Ineichen-Perez".into(),
-                "Ineichen and Perez, Solar Energy 73(3), 2002",
-            ),
+            match &m.weather.sky {
+                Sky::Csv { path } => a(
+                    "irradiance",
+                    format!("measured, {}", path.display()),
+                    "weather file; linear between records, beam closed on GHI",
+                ),
+                _ => a(
+                    "irradiance",
+                    "clear sky, Ineichen-Perez".into(),
+                    "Ineichen and Perez, Solar Energy 73(3), 2002",
+                ),
+            },
             a(
                 "panel plane",
                 format!("{:?}", m.weather.sky_model),
@@ -492,12 +326,15 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             ),
             a(
                 "battery box heating",
-                format!("{ELECTRONICS_HEAT_SHARE} of the electronics' power"),
-                "assumption, no source",
+                format!(
+                    "{} of the electronics' power",
+                    m.thermal.electronics_heat_share
+                ),
+                "mission file ([thermal] electronics_heat_share; default 0.3 is an assumption)",
             ),
             a(
                 "start of each season",
-                "local midnight, full pack".into(),
+                format!("{:05.2} h local time, full pack", m.start_local_h),
                 "sunward convention",
             ),
             a("simulation step", format!("{} s", m.step_s), "mission file"),
@@ -515,6 +352,7 @@ fn terrain_label(m: &Mission, mission_dir: &Path) -> String {
         .to_string()
 }
 
+#[allow(clippy::too_many_arguments)] // one call site; each argument is a distinct input
 fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     mission_dir: &Path,
     out: &Path,
@@ -523,6 +361,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     route: &Route,
     planner: &Planner<'_, M>,
     results: &[SeasonResult],
+    mc: Option<&MonteCarlo>,
 ) -> Result<(), Error> {
     let inputs = serde_json::json!({
         "site": {"name": m.site.name, "lat_deg": m.site.latitude_rad.to_degrees(),
@@ -534,9 +373,17 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         "panel_area_m2": m.panels.panel.area_m2,
         "step_s": m.step_s,
         "deadline_s": m.policy.deadline_s,
-        "initial_soc": 1.0,
+        "initial_soc": prepare::INITIAL_SOC,
+        "start_local_h": m.start_local_h,
+        "electronics_heat_share": m.thermal.electronics_heat_share,
     });
-    let doc = summary(&m.site.name, results, inputs);
+    let mut inputs = inputs;
+    if let Sky::Csv { path } = &m.weather.sky {
+        let label = path.strip_prefix(mission_dir).unwrap_or(path);
+        inputs["weather_file"] = label.display().to_string().into();
+    }
+    let mut doc = summary(&m.site.name, results, inputs);
+    doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
     let text = summary_json(&doc);
     write_atomic(&out.join("summary.json"), |w| w.write_all(text.as_bytes()))?;
     let mut daily = format!("{DAILY_HEADER}\n");
@@ -573,6 +420,24 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     write_atomic(&out.join("route_map.png"), |wr| {
         png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
     })?;
+    let grey_rgb: Vec<u8> = grey.iter().flat_map(|&g| [g, g, g]).collect();
+    let mut relief = Vec::new();
+    png::write_rgb8(&mut relief, dem.width(), dem.height(), &grey_rgb).map_err(|source| {
+        Error::Output {
+            path: out.join("route_map.svg"),
+            source,
+        }
+    })?;
+    let svg = sunward::report::map::route_map_svg(
+        &relief,
+        dem.width(),
+        dem.height(),
+        route,
+        &sites,
+        scale,
+        &format!("{}: route coloured by step energy", m.site.name),
+    );
+    write_atomic(&out.join("route_map.svg"), |w| w.write_all(svg.as_bytes()))?;
     let offset = m.site.utc_offset.local_minus_utc();
     let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
     let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
@@ -585,6 +450,10 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         })
         .collect();
     charts.push(("seasons".to_string(), seasons_chart(&m.site.name, results)));
+    if let Some(mc) = mc {
+        let chart = monte_carlo_chart(&m.site.name, &mc.results, m.battery.reserve_soc);
+        charts.push(("montecarlo".to_string(), chart));
+    }
     let mut figures = Vec::new();
     for (name, chart) in &charts {
         let png = render_png(chart).map_err(plot_err)?;
@@ -619,6 +488,28 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     Ok(())
 }
 
+fn print_monte_carlo(mc: &MonteCarlo, reserve_soc: f64) {
+    crate::say!(
+        "weather Monte Carlo: {} runs per season, seed {} (days drawn independently: dark \
+         spells are under-sampled, so these probabilities are optimistic)",
+        mc.runs,
+        mc.seed
+    );
+    for r in &mc.results {
+        crate::say!(
+            "  {:<18} complete in {:>5.1} % of runs  min SOC mean {:>5.1} %  5/50/95 %: {:.1} / {:.1} / {:.1} %  (reserve {:.0} %)",
+            r.season.name,
+            100.0 * r.probability_complete(),
+            100.0 * r.min_soc_mean(),
+            100.0 * r.min_soc_quantile(0.05),
+            100.0 * r.min_soc_quantile(0.5),
+            100.0 * r.min_soc_quantile(0.95),
+            100.0 * reserve_soc
+        );
+    }
+    crate::say!("  (summary.json: monte_carlo; montecarlo.png/svg)");
+}
+
 fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
     crate::say!("{}: {} season(s)", m.site.name, results.len());
     for r in results {
@@ -635,6 +526,6 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.reason
         );
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png, season-*.png/svg, seasons.png/svg, report.html", out.display());
+    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png/svg, season-*.png/svg, seasons.png/svg, report.html", out.display());
     crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
 }

@@ -15,8 +15,12 @@
 //! - [`ledger`]: energy bookkeeping that closes, and daily budgets.
 //! - [`runner`]: one run per season, in parallel, with verdicts and daily budgets.
 //! - [`verdict`]: a season's verdict and margin.
+//! - [`prepare`]: the pipeline from a checked mission to a simulation setup (terrain
+//!   read through [`crate::terrain::io`], route planned, sites ordered, models checked),
+//!   shared by every command that simulates.
 
 pub mod ledger;
+pub mod prepare;
 pub mod resolve;
 pub mod runner;
 pub mod sim;

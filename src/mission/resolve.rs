@@ -163,6 +163,10 @@ pub struct Weather {
     pub wind_m_s: f64,
     /// Monthly air temperature.
     pub climate: MonthlyClimate,
+    /// Standard deviation of the daily clear-sky index, January..December (`sky =
+    /// "clearness"` only; the monthly `clearness` are the means), for the weather Monte
+    /// Carlo. Each month has sd = 0 or sd² < mean·(1 − mean).
+    pub clearness_sd: Option<[f64; 12]>,
 }
 
 /// When the rover may drive.
@@ -1058,6 +1062,7 @@ fn weather(
         return None;
     };
     let sky = sky(w, base, exists, out);
+    let clearness_sd = clearness_sd(w, sky.as_ref(), out);
     let climate = climate(w, out);
     let sky_model = match get(&w.sky_model).as_deref() {
         Some("isotropic") => SkyModel::Isotropic,
@@ -1070,7 +1075,48 @@ fn weather(
         sky_model,
         wind_m_s: get(&w.wind_m_s).unwrap_or(defaults::WIND_M_S),
         climate: climate?,
+        clearness_sd,
     })
+}
+
+/// `clearness_sd`: only with `sky = "clearness"`; a Beta distribution per month needs
+/// sd² < mean·(1 − mean) (or sd = 0).
+fn clearness_sd(
+    w: &crate::mission::spec::WeatherRaw,
+    sky: Option<&Sky>,
+    out: &mut Out<'_>,
+) -> Option<[f64; 12]> {
+    let mode = get(&w.sky).unwrap_or_else(|| "clear_sky".into());
+    if mode != "clearness" {
+        out.not_for(
+            "weather.clearness_sd",
+            &w.clearness_sd,
+            &format!("sky = \"{mode}\""),
+        );
+        return None;
+    }
+    let sd = twelve(&w.clearness_sd)?;
+    let Some(Sky::Clearness { monthly, .. }) = sky else {
+        return None;
+    };
+    let span = w.clearness_sd.as_ref().map(|s| s.span());
+    for (m, (&mu, &sigma)) in monthly.iter().zip(&sd).enumerate() {
+        if let Err(e) = crate::sun::clearness_mc::DayLaw::from_mean_sd(mu, sigma, m + 1) {
+            let most = (mu * (1.0 - mu)).sqrt();
+            out.add(
+                "weather.clearness_sd",
+                span,
+                e.to_string(),
+                format!(
+                    "give an sd below {most:.3} for month {} (sqrt(mean·(1 − mean)) with the \
+                     month's clearness {mu}), or 0 for no day-to-day spread",
+                    m + 1
+                ),
+            );
+            return None;
+        }
+    }
+    Some(sd)
 }
 
 fn twelve(v: &Option<Val<Vec<f64>>>) -> Option<[f64; 12]> {

@@ -1,8 +1,8 @@
 //! Runs one simulation per season (in parallel; each season is independent) and gives
 //! each its verdict and daily budgets.
 //!
-//! A season starts at local midnight of its date (the site's clock, `utc_offset_s`) and
-//! runs until arrival, stranding or the policy's deadline.
+//! A season starts at the setup's `start_local_h` on its date (the site's clock,
+//! `utc_offset_s`) and runs until arrival, stranding or the policy's deadline.
 //!
 //! # Units
 //! Seconds; dates are local calendar dates.
@@ -36,6 +36,12 @@ pub fn local_midnight(date: NaiveDate, utc_offset_s: i64) -> DateTime<Utc> {
         - Duration::seconds(utc_offset_s)
 }
 
+/// The start of a season: `start_local_h` hours after local midnight of `date`.
+pub fn season_start(date: NaiveDate, utc_offset_s: i64, start_local_h: f64) -> DateTime<Utc> {
+    local_midnight(date, utc_offset_s)
+        + Duration::milliseconds((start_local_h * 3.6e6).round() as i64)
+}
+
 /// Simulates every season with the same setup. Results come back in the seasons' order
 /// whatever the number of threads.
 pub fn run_seasons(
@@ -57,7 +63,8 @@ pub fn run_seasons_with(
     let out = seasons
         .par_iter()
         .map(|season| {
-            let run = simulate(setup, local_midnight(season.date, setup.utc_offset_s))?;
+            let start = season_start(season.date, setup.utc_offset_s, setup.start_local_h);
+            let run = simulate(setup, start)?;
             let length = setup.route.summary.length_m;
             let summary = summarize(&season.name, season.date, &run, reserve, length);
             let days = daily_budgets(

@@ -12,8 +12,13 @@
 //!    each route step (its battery energy minus the hotel energy of its driving time) is
 //!    spread over its driving time; partial steps are prorated.
 //! 3. **Sun**: SPA position at the middle of the step, Ineichen-Perez clear sky (scaled
-//!    by a monthly clearness factor when the mission gives one: every component alike,
-//!    a simple scaling that keeps the clear sky's beam/diffuse split),
+//!    by a monthly clearness factor when the mission gives one, or by a clear-sky index
+//!    per local day when the setup carries one ([`SkySetup::clearness_daily`], the
+//!    weather Monte Carlo's draws): every component alike, a simple scaling that keeps
+//!    the clear sky's beam/diffuse split), or, with a measured weather record
+//!    ([`SkySetup::weather`]), the record's GHI/DNI/DHI at the middle of the step by the
+//!    rule of [`crate::sun::measured`] (linear in time, beam closed on GHI at the step's
+//!    own sun position, dark below the horizon),
 //!    transposition onto the panel plane of the mount at the body attitude of the current
 //!    route step (body-mounted panels follow pitch, roll and heading), terrain shading of
 //!    the current cell from the horizon map, PV power at the cell temperature.
@@ -34,7 +39,8 @@
 //! drives on.
 //!
 //! # Limits
-//! Clear-sky irradiance only (an upper bound of real skies); acceleration and turning
+//! Without a weather record the sky is the clear sky, scaled (an upper bound of real
+//! skies unless the scaling says otherwise); acceleration and turning
 //! energy are left out; the rover's state inside a step is taken as constant.
 //!
 //! # Units
@@ -102,7 +108,7 @@ pub struct Policy {
 
 /// The sun and sky side of a run.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SkySetup {
+pub struct SkySetup<'a> {
     /// The site.
     pub observer: Observer,
     /// ΔT = TT − UT, seconds.
@@ -118,6 +124,13 @@ pub struct SkySetup {
     /// Monthly factor on the clear-sky irradiance, January..December (1 = clear sky;
     /// a monthly clearness relative to clear sky, e.g. measured / clear-sky daily GHI).
     pub clearness_monthly: [f64; 12],
+    /// Clear-sky index per local day (index 0 = the local calendar day of the run's
+    /// start, at the site's `utc_offset_s`), overriding the monthly factor on the days it
+    /// covers; later days take the monthly factor. `None`: the monthly factor throughout.
+    pub clearness_daily: Option<&'a [f64]>,
+    /// A measured weather record: its irradiance replaces the clear sky (and the
+    /// clearness factors) and must cover the whole run. `None`: the clear sky.
+    pub weather: Option<&'a crate::sun::climate::WeatherSeries>,
 }
 
 /// A payload stop: when the rover reaches profile row `row`, it parks there for
@@ -154,7 +167,7 @@ pub struct SimSetup<'a> {
     /// How the panels are mounted.
     pub mount: Mount,
     /// Sun and sky.
-    pub sky: SkySetup,
+    pub sky: SkySetup<'a>,
     /// Terrain horizons for shading (None: open horizon).
     pub horizon: Option<&'a HorizonMap>,
     /// Air temperature.
@@ -167,6 +180,9 @@ pub struct SimSetup<'a> {
     pub step_s: f64,
     /// Payload stops along the route, in route order.
     pub stops: Vec<Stop>,
+    /// Local hour at which the runner starts each season, 0 to 24 (the mission's
+    /// `simulation.start_local_h`); [`simulate`] itself starts where it is told.
+    pub start_local_h: f64,
 }
 
 /// Why a run stopped short.
@@ -297,6 +313,18 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     {
         return Err(bad("clearness_monthly", f64::NAN, "factors from 0 to 1.2"));
     }
+    if let Some(d) = setup.sky.clearness_daily {
+        if let Some(k) = d.iter().find(|k| !(0.0..=1.2).contains(*k)) {
+            return Err(bad("clearness_daily", *k, "factors from 0 to 1.2"));
+        }
+        if setup.sky.weather.is_some() {
+            return Err(bad(
+                "clearness_daily",
+                f64::NAN,
+                "no daily clearness with a measured weather record",
+            ));
+        }
+    }
     if !(0.0..=1.0).contains(&setup.initial_soc) {
         return Err(bad(
             "initial_soc",
@@ -324,10 +352,21 @@ fn check(setup: &SimSetup<'_>) -> Result<(), SimError> {
     Ok(())
 }
 
+/// Relative shortfall below which a step counts as served (see its use).
+const SHORTFALL_TOLERANCE: f64 = 1e-6;
+
 /// Runs one season from `start`.
 pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimError> {
     check(setup)?;
     let end = start + Duration::milliseconds((setup.policy.deadline_s * 1000.0) as i64);
+    if let Some(w) = setup.sky.weather {
+        if !crate::sun::measured::covers(w, start, end) {
+            return Err(SimError::Stage(format!(
+                "the weather record does not cover the run from {start} to {end}"
+            )));
+        }
+    }
+    let day0 = local_day(start, setup.utc_offset_s);
     let track = SunTrack::new(
         start,
         end + Duration::hours(1),
@@ -432,7 +471,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             pitch_rad: heading_row.pitch_rad,
             roll_rad: heading_row.roll_rad,
         };
-        let poa_w_m2 = poa(setup, &sun, &att, here.col, here.row, mid);
+        let day = local_day(mid, setup.utc_offset_s) - day0;
+        let poa_w_m2 = poa(setup, &sun, &att, (here.col, here.row), mid, day);
         let gen_w = setup.panel.power_at_w(poa_w_m2, air_c, setup.sky.wind_m_s);
         // Loads.
         let hotel_w = if activity == Activity::Asleep {
@@ -491,8 +531,11 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         pack_state = ps.state;
         let losses_wh = ps.loss_resistive_wh + ps.loss_coulombic_wh;
         last_loss_w = losses_wh * 3600.0 / dt;
+        // A shortfall below a millionth of the demand is the pack's round-off (its
+        // fixed-point current solve), not a lack of energy: large packs see it.
+        let short = ps.shortfall_w > SHORTFALL_TOLERANCE * demand_w.max(1.0);
         // Served share of the demand (below 1 only in the step that strands the rover).
-        let served = if ps.shortfall_w > 1e-9 && demand_w > 0.0 {
+        let served = if short && demand_w > 0.0 {
             ((demand_w - ps.shortfall_w) / demand_w).clamp(0.0, 1.0)
         } else {
             1.0
@@ -544,7 +587,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             ambient_c: air_c,
             sun_elevation_deg: sun.apparent_elevation_rad().to_degrees(),
         });
-        if ps.shortfall_w > 1e-9 {
+        if short {
             let (heater, used) = day_window
                 .iter()
                 .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
@@ -635,23 +678,22 @@ fn poa(
     setup: &SimSetup<'_>,
     sun: &crate::sun::position::SunPosition,
     att: &Attitude,
-    col: usize,
-    row: usize,
+    (col, row): (usize, usize),
     t: DateTime<Utc>,
+    day: i64,
 ) -> f64 {
     let Some(am) = relative_airmass(sun.apparent_zenith_rad) else {
         return 0.0;
     };
     let e0 = extraterrestrial_w_m2(sun.earth_sun_distance_au);
-    use chrono::Datelike;
     let sky = &setup.sky;
-    let irr = ineichen_perez(
-        sun.apparent_zenith_rad,
-        absolute_airmass(am, sky.observer.pressure_hpa),
-        sky.linke.for_month(t.month()),
-        sky.observer.elevation_m,
-        e0,
-    );
+    let irr = match sky.weather {
+        Some(w) => match crate::sun::measured::irradiance_at(w, t, sun.apparent_zenith_rad) {
+            Some(c) => c,
+            None => return 0.0,
+        },
+        None => clear_sky(sky, sun, am, e0, t, day),
+    };
     let Some(plane) = setup
         .mount
         .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad)
@@ -664,17 +706,46 @@ fn poa(
         dni_extra_w_m2: e0,
         airmass_relative: Some(am),
     };
-    let k = sky.clearness_monthly[t.month0() as usize];
-    let irr = crate::sun::irradiance::Components {
-        ghi_w_m2: irr.ghi_w_m2 * k,
-        dni_w_m2: irr.dni_w_m2 * k,
-        dhi_w_m2: irr.dhi_w_m2 * k,
-    };
     let mut p = plane_of_array(&plane, &geom, &irr, sky.albedo, sky.sky_model);
     if let Some(shade) = setup.horizon.and_then(|h| SiteShade::new(h, col, row)) {
         p = shade.apply(p, sun.apparent_elevation_rad(), sun.azimuth_rad);
     }
     p.total_w_m2()
+}
+
+/// The clear sky at `t`, scaled by the day's or the month's clearness factor.
+fn clear_sky(
+    sky: &SkySetup<'_>,
+    sun: &crate::sun::position::SunPosition,
+    am: f64,
+    e0: f64,
+    t: DateTime<Utc>,
+    day: i64,
+) -> crate::sun::irradiance::Components {
+    use chrono::Datelike;
+    let irr = ineichen_perez(
+        sun.apparent_zenith_rad,
+        absolute_airmass(am, sky.observer.pressure_hpa),
+        sky.linke.for_month(t.month()),
+        sky.observer.elevation_m,
+        e0,
+    );
+    let daily = sky
+        .clearness_daily
+        .and_then(|d| usize::try_from(day).ok().and_then(|i| d.get(i)));
+    let k = daily
+        .copied()
+        .unwrap_or(sky.clearness_monthly[t.month0() as usize]);
+    crate::sun::irradiance::Components {
+        ghi_w_m2: irr.ghi_w_m2 * k,
+        dni_w_m2: irr.dni_w_m2 * k,
+        dhi_w_m2: irr.dhi_w_m2 * k,
+    }
+}
+
+/// Days since 1970-01-01 on the site's clock.
+fn local_day(t: DateTime<Utc>, offset_s: i64) -> i64 {
+    (t.timestamp() + offset_s).div_euclid(86_400)
 }
 
 fn local_seconds(t: DateTime<Utc>, offset_s: i64) -> f64 {

@@ -196,6 +196,7 @@ pub struct WeatherRaw {
     pub sky: Option<Val<String>>,
     pub linke_turbidity: Option<Val<Vec<f64>>>,
     pub clearness: Option<Val<Vec<f64>>>,
+    pub clearness_sd: Option<Val<Vec<f64>>>,
     pub file: Option<Val<String>>,
     pub albedo: Option<Val<f64>>,
     pub sky_model: Option<Val<String>>,
@@ -914,6 +915,7 @@ fn read_weather(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> WeatherRaw {
         sky: t.choice("sky", &SKIES, out),
         linke_turbidity: read_linke(t, out),
         clearness: t.nums("clearness", Some(12), Interval::closed(0.0, 1.0), out),
+        clearness_sd: read_one_or_twelve(t, "clearness_sd", Interval::closed(0.0, 0.5), out),
         file: t.text("file", out),
         albedo: t.num("albedo", Interval::closed(0.0, 1.0), out),
         sky_model: t.choice("sky_model", &SKY_MODELS, out),
@@ -927,14 +929,23 @@ fn read_weather(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> WeatherRaw {
 
 /// `linke_turbidity`: one number for every month, or twelve.
 fn read_linke(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Option<Val<Vec<f64>>> {
-    let range = Interval::closed(1.0, 10.0);
-    let v = t.get("linke_turbidity")?;
+    read_one_or_twelve(t, "linke_turbidity", Interval::closed(1.0, 10.0), out)
+}
+
+/// A monthly key given as one number for every month, or twelve.
+fn read_one_or_twelve(
+    t: &mut Reader<'_, '_>,
+    key: &'static str,
+    range: Interval,
+    out: &mut Problems<'_>,
+) -> Option<Val<Vec<f64>>> {
+    let v = t.get(key)?;
     if matches!(v.get_ref(), DeValue::Array(_)) {
         t.known.pop();
-        return t.nums("linke_turbidity", Some(12), range, out);
+        return t.nums(key, Some(12), range, out);
     }
     t.known.pop();
-    let one = t.num("linke_turbidity", range, out)?;
+    let one = t.num(key, range, out)?;
     Some(Spanned::new(one.span(), vec![*one.get_ref(); 12]))
 }
 

@@ -17,7 +17,15 @@
 //!     "heater", "losses"}, "margin", "energy_curtailed_wh", "distance_m",
 //!     "storage_breach_time", "reason" } ],
 //!   "inputs": { ... the mission's inputs, echoed with units in their keys ... },
-//!   "cautions": [ ... ]
+//!   "cautions": [ ... ],
+//!   "monte_carlo": {                       only with `run --monte-carlo N`
+//!     "runs", "seed", "distribution", "quantile_rule", "limitation",
+//!     "seasons": [ {                       one object per season, in the seasons' order
+//!       "name", "date", "runs", "seed", "distribution", "quantile_rule",
+//!       "probability_complete",            share of feasible runs (0..1)
+//!       "min_soc_mean", "min_soc_q05", "min_soc_q50", "min_soc_q95",
+//!       "min_socs": [ ... ]                each run's lowest state of charge, run order
+//!     } ] }
 //! }
 //! ```
 //!
@@ -28,6 +36,8 @@ use serde::Serialize;
 
 use crate::mission::runner::SeasonResult;
 use crate::mission::verdict::SeasonSummary;
+use crate::study::montecarlo::{SeasonMonteCarlo, QUANTILE_RULE};
+use crate::sun::clearness_mc::DISTRIBUTION;
 
 /// The schema version written into every summary.json.
 pub const SCHEMA_VERSION: u32 = 1;
@@ -60,6 +70,88 @@ pub struct Summary<'a> {
     pub inputs: serde_json::Value,
     /// The cautions.
     pub cautions: [&'static str; 4],
+    /// The weather Monte Carlo, when one was run.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub monte_carlo: Option<MonteCarloJson>,
+}
+
+/// The weather Monte Carlo of a run (`run --monte-carlo N`).
+#[derive(Debug, Clone, Serialize)]
+pub struct MonteCarloJson {
+    /// Runs per season.
+    pub runs: usize,
+    /// The seed.
+    pub seed: u64,
+    /// The daily distribution.
+    pub distribution: &'static str,
+    /// How the quantiles are formed.
+    pub quantile_rule: &'static str,
+    /// What the sampling leaves out.
+    pub limitation: &'static str,
+    /// One entry per season.
+    pub seasons: Vec<MonteCarloSeasonJson>,
+}
+
+/// One season's Monte Carlo in summary.json.
+#[derive(Debug, Clone, Serialize)]
+pub struct MonteCarloSeasonJson {
+    /// Season name.
+    pub name: String,
+    /// Season date.
+    pub date: String,
+    /// Runs.
+    pub runs: usize,
+    /// The seed.
+    pub seed: u64,
+    /// The daily distribution.
+    pub distribution: &'static str,
+    /// How the quantiles are formed.
+    pub quantile_rule: &'static str,
+    /// Share of feasible runs.
+    pub probability_complete: f64,
+    /// Mean of the runs' lowest state of charge.
+    pub min_soc_mean: f64,
+    /// 5 % quantile of the lowest state of charge.
+    pub min_soc_q05: f64,
+    /// Median of the lowest state of charge.
+    pub min_soc_q50: f64,
+    /// 95 % quantile of the lowest state of charge.
+    pub min_soc_q95: f64,
+    /// Every run's lowest state of charge, in run order.
+    pub min_socs: Vec<f64>,
+}
+
+/// What the Monte Carlo's daily draws leave out.
+pub const MONTE_CARLO_LIMITATION: &str = "days are drawn independently; real cloudiness \
+     is autocorrelated, so multi-day dark spells are under-sampled and the probability of \
+     completing is optimistic";
+
+/// The summary.json entry of a weather Monte Carlo.
+pub fn monte_carlo_json(results: &[SeasonMonteCarlo], runs: usize, seed: u64) -> MonteCarloJson {
+    MonteCarloJson {
+        runs,
+        seed,
+        distribution: DISTRIBUTION,
+        quantile_rule: QUANTILE_RULE,
+        limitation: MONTE_CARLO_LIMITATION,
+        seasons: results
+            .iter()
+            .map(|r| MonteCarloSeasonJson {
+                name: r.season.name.clone(),
+                date: r.season.date.to_string(),
+                runs: r.draws.len(),
+                seed: r.seed,
+                distribution: DISTRIBUTION,
+                quantile_rule: QUANTILE_RULE,
+                probability_complete: r.probability_complete(),
+                min_soc_mean: r.min_soc_mean(),
+                min_soc_q05: r.min_soc_quantile(0.05),
+                min_soc_q50: r.min_soc_quantile(0.50),
+                min_soc_q95: r.min_soc_quantile(0.95),
+                min_socs: r.min_socs(),
+            })
+            .collect(),
+    }
 }
 
 /// Builds the summary of a run.
@@ -76,6 +168,7 @@ pub fn summary<'a>(
         seasons: results.iter().map(|r| &r.summary).collect(),
         inputs,
         cautions: CAUTIONS,
+        monte_carlo: None,
     }
 }
 

@@ -4,6 +4,10 @@
 //! waypoints in yellow, each on a black outline. Each grid
 //! cell is drawn as `scale × scale` pixels so small grids stay readable.
 //!
+//! [`route_map_svg`] draws the same map as SVG: the shaded relief as an embedded PNG
+//! image, the route as vector segments in the same colours, the start, goal and sites as
+//! circles, and a title.
+//!
 //! # Units
 //! Pixels; energies in joules only for the colour scale.
 
@@ -73,6 +77,77 @@ pub fn route_map_rgb(
         paint(b.col, b.row, [255, 255, 255], mark);
     }
     px
+}
+
+/// The map as SVG text (module doc). `relief_png` is the shaded relief, one pixel per
+/// cell (`width × height`); `scale` pixels per cell in the drawing.
+pub fn route_map_svg(
+    relief_png: &[u8],
+    width: usize,
+    height: usize,
+    route: &Route,
+    sites: &[(usize, usize)],
+    scale: usize,
+    title: &str,
+) -> String {
+    use std::fmt::Write;
+    let s = scale.max(1) as f64;
+    let (pw, ph) = (width as f64 * s, height as f64 * s);
+    let head = 28.0;
+    let mut out = String::new();
+    let esc = |t: &str| {
+        t.replace('&', "&amp;")
+            .replace('<', "&lt;")
+            .replace('>', "&gt;")
+    };
+    let _ = write!(
+        out,
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{pw}\" height=\"{}\" viewBox=\"0 0 {pw} {}\">\n\
+         <rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n\
+         <text x=\"8\" y=\"19\" font-family=\"sans-serif\" font-size=\"15\" font-weight=\"bold\">{}</text>\n\
+         <image x=\"0\" y=\"{head}\" width=\"{pw}\" height=\"{ph}\" preserveAspectRatio=\"none\" \
+         style=\"image-rendering:pixelated\" href=\"data:image/png;base64,{}\"/>\n",
+        ph + head,
+        ph + head,
+        esc(title),
+        crate::report::html::base64(relief_png)
+    );
+    let energies: Vec<f64> = route.profile.iter().map(|p| p.step_energy_j).collect();
+    let lo = energies.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = energies.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let at = |c: usize, r: usize| ((c as f64 + 0.5) * s, head + (r as f64 + 0.5) * s);
+    let stroke = (s * 0.8).max(2.0);
+    for w in route.profile.windows(2) {
+        let t = if hi > lo {
+            (w[1].step_energy_j - lo) / (hi - lo)
+        } else {
+            0.5
+        };
+        let [r, g, b] = ramp(t);
+        let (a, z) = (at(w[0].col, w[0].row), at(w[1].col, w[1].row));
+        let _ = writeln!(
+            out,
+            "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\" stroke=\"rgb({r},{g},{b})\" stroke-width=\"{stroke:.1}\" stroke-linecap=\"round\"/>",
+            a.0, a.1, z.0, z.1
+        );
+    }
+    let mark = (s * 3.0).max(4.0);
+    let mut dot = |c: usize, r: usize, fill: &str| {
+        let (x, y) = at(c, r);
+        let _ = writeln!(
+            out,
+            "<circle cx=\"{x:.1}\" cy=\"{y:.1}\" r=\"{mark:.1}\" fill=\"{fill}\" stroke=\"black\" stroke-width=\"1.5\"/>"
+        );
+    };
+    for &(c, r) in sites {
+        dot(c, r, "rgb(250,215,40)");
+    }
+    if let (Some(a), Some(b)) = (route.profile.first(), route.profile.last()) {
+        dot(a.col, a.row, "rgb(40,200,60)");
+        dot(b.col, b.row, "white");
+    }
+    out.push_str("</svg>\n");
+    out
 }
 
 #[cfg(test)]

@@ -31,7 +31,7 @@ use plotters::prelude::*;
 use plotters::style::{register_font, FontStyle};
 
 /// Font family name the embedded DejaVu Sans is registered under (plotters' default).
-const FAMILY: &str = "sans-serif";
+pub(crate) const FAMILY: &str = "sans-serif";
 
 /// Smallest and largest image side accepted, pixels.
 pub const SIDE_RANGE_PX: (u32, u32) = (200, 8000);
@@ -56,7 +56,7 @@ fn chart_err(detail: String, fix: &'static str) -> PlotError {
     PlotError::Chart { detail, fix }
 }
 
-fn draw_err(e: impl std::fmt::Display) -> PlotError {
+pub(crate) fn draw_err(e: impl std::fmt::Display) -> PlotError {
     PlotError::Draw(e.to_string())
 }
 
@@ -149,7 +149,7 @@ pub const PALETTE: [[u8; 3]; 7] = [
 /// Fill of bands: a light blue-grey, drawn under the grid and the lines.
 const BAND_RGB: [u8; 3] = [205, 212, 228];
 
-fn register_fonts() -> Result<(), PlotError> {
+pub(crate) fn register_fonts() -> Result<(), PlotError> {
     static DONE: OnceLock<bool> = OnceLock::new();
     let ok = *DONE.get_or_init(|| {
         register_font(FAMILY, FontStyle::Normal, dejavu::sans::regular()).is_ok()
@@ -186,7 +186,7 @@ pub fn render_svg(chart: &LineChart) -> Result<String, PlotError> {
     Ok(svg)
 }
 
-fn encode_png(rgb: &[u8], w: u32, h: u32) -> Result<Vec<u8>, PlotError> {
+pub(crate) fn encode_png(rgb: &[u8], w: u32, h: u32) -> Result<Vec<u8>, PlotError> {
     let mut out = Vec::new();
     crate::terrain::io::png::write_rgb8(&mut out, w as usize, h as usize, rgb).map_err(draw_err)?;
     Ok(out)

@@ -7,6 +7,9 @@
 //! - [`decomposition`]: Erbs split of measured GHI into DNI and DHI.
 //! - [`transposition`]: plane-of-array irradiance (isotropic, Hay-Davies, Perez).
 //! - [`shading`]: terrain horizon hides the beam; sky-view factor scales the diffuse.
+//! - [`measured`]: a measured weather record's components at any instant (linear, beam
+//!   closed on GHI).
+//! - [`clearness_mc`]: seeded daily clear-sky index draws (Beta) for the weather Monte Carlo.
 //! - [`series`]: clear-sky time series of position, components and POA (parallel).
 //! - [`panel`]: panel power with cell temperature (Faiman, NOCT); mounts and attitude.
 //!
@@ -16,10 +19,12 @@
 //! Radians for angles, W/m² for irradiance, W for power, °C for temperatures, metres,
 //! hPa for pressure; `DateTime<Utc>` for instants.
 
+pub mod clearness_mc;
 pub mod climate;
 pub mod decomposition;
 pub mod error;
 pub mod irradiance;
+pub mod measured;
 pub mod panel;
 pub mod position;
 pub mod series;

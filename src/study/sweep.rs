@@ -1,0 +1,323 @@
+//! Sweeps: one mission, many cases, each a combination of varied key values
+//! ([`super::vary`]), each simulated for its seasons like `sunward run` does
+//! ([`crate::mission::prepare`]), reduced to one row.
+//!
+//! # Cases and their verdict
+//! Case `i` writes its values into the mission file, checks the file as `sunward check`
+//! would, plans its route and simulates its seasons. Its row holds: `feasible` (every
+//! season feasible), the number of feasible seasons, `min_soc` (the lowest state of
+//! charge of any season), `hours_below_reserve` (the worst season's), `margin` (the
+//! smallest season margin, state of charge above the reserve at its lowest) and the
+//! binding season (the one with the smallest margin; the first in the mission's order on
+//! ties) with its reason. A case whose file does not check, or whose setup a stage
+//! refuses, is infeasible with the problem as its reason (the rest of the sweep goes on).
+//!
+//! # Reuse
+//! The terrain is read and its horizon map computed once. Routes depend only on the
+//! `[route]` and `[rover]` sections: cases whose two sections are the same (after their
+//! values are written in) share one planned route, planned once.
+//!
+//! # Determinism
+//! Cases run in parallel (rayon) but each is computed alone from its own inputs, and
+//! results come back in case order, so any thread count and any split into shards gives
+//! the same rows.
+
+use std::collections::HashMap;
+use std::path::Path;
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::Arc;
+
+use rayon::prelude::*;
+
+use crate::error::Error;
+use crate::mission::prepare::{plan, sim_setup, unplannable, Ground, Models, Planned};
+use crate::mission::resolve::{Mission, Season};
+use crate::mission::runner::run_seasons;
+use crate::mission::verdict::SeasonSummary;
+use crate::plan::PlanError;
+use crate::progress::Progress;
+use crate::study::vary::{case_values, set, Value, Vary};
+use crate::terrain::horizon::HorizonMap;
+
+/// One case's reduced outcome.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CaseOutcome {
+    /// Every season feasible.
+    pub feasible: bool,
+    /// Seasons feasible.
+    pub seasons_feasible: usize,
+    /// Seasons run.
+    pub seasons: usize,
+    /// Lowest state of charge over the seasons, fraction.
+    pub min_soc: f64,
+    /// The worst season's hours below the reserve.
+    pub hours_below_reserve: f64,
+    /// Smallest season margin, fraction of capacity.
+    pub margin: f64,
+    /// The season with the smallest margin.
+    pub binding_season: String,
+    /// Its verdict's reason (or why the case could not be set up).
+    pub binding_reason: String,
+    /// When the binding season's state of charge was lowest (UTC, RFC 3339).
+    pub binding_time: String,
+}
+
+/// One case: its index in the full grid, its values and its outcome.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Case {
+    /// Index in the full grid.
+    pub index: usize,
+    /// One value per varied key.
+    pub values: Vec<Value>,
+    /// The outcome.
+    pub outcome: CaseOutcome,
+}
+
+/// The reduction of a case's season verdicts (module doc).
+pub fn reduce(summaries: &[SeasonSummary]) -> CaseOutcome {
+    let mut worst: Option<&SeasonSummary> = None;
+    for s in summaries {
+        if worst.is_none_or(|w| s.margin < w.margin) {
+            worst = Some(s);
+        }
+    }
+    let Some(w) = worst else {
+        return invalid("no season to run".into());
+    };
+    CaseOutcome {
+        feasible: summaries.iter().all(|s| s.feasible),
+        seasons_feasible: summaries.iter().filter(|s| s.feasible).count(),
+        seasons: summaries.len(),
+        min_soc: summaries
+            .iter()
+            .map(|s| s.min_soc)
+            .fold(f64::INFINITY, f64::min),
+        hours_below_reserve: summaries
+            .iter()
+            .map(|s| s.hours_below_reserve)
+            .fold(0.0, f64::max),
+        margin: w.margin,
+        binding_season: w.name.clone(),
+        binding_reason: w.reason.clone(),
+        binding_time: w
+            .min_soc_time
+            .to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+    }
+}
+
+/// A case that could not be set up.
+fn invalid(reason: String) -> CaseOutcome {
+    CaseOutcome {
+        feasible: false,
+        seasons_feasible: 0,
+        seasons: 0,
+        min_soc: f64::NAN,
+        hours_below_reserve: f64::NAN,
+        margin: f64::NAN,
+        binding_season: String::new(),
+        binding_reason: reason,
+        binding_time: String::new(),
+    }
+}
+
+/// A mission and what is shared by all its cases.
+pub struct Study<'a> {
+    doc: toml::Table,
+    base: &'a Path,
+    exists: &'a (dyn Fn(&Path) -> bool + Sync),
+    only: Vec<String>,
+    ground: Ground,
+    horizons: HorizonMap,
+    models: Models,
+}
+
+/// A case's mission, or why it has none.
+type Prepared = Result<Mission, String>;
+
+/// A planned route, an unplannable verdict, or why planning failed.
+type PlanOutcome = Result<Result<Planned, PlanError>, String>;
+
+impl<'a> Study<'a> {
+    /// Reads the base mission's terrain and computes its horizon map. `text` is the
+    /// mission file (checked already), `base` its folder, `exists` the file lookup,
+    /// `only` the season filter of `--season`, `weather_csv` the text of the mission's
+    /// weather file when it has one (`sky = "csv"`; parsed once for every case).
+    pub fn new(
+        text: &str,
+        base: &'a Path,
+        exists: &'a (dyn Fn(&Path) -> bool + Sync),
+        only: &[String],
+        weather_csv: Option<&str>,
+        progress: &dyn Progress,
+    ) -> Result<Study<'a>, Error> {
+        let m = crate::mission::check(text, base, exists).map_err(|p| {
+            Error::Usage(format!(
+                "the mission file does not check: {}. Fix: run `sunward check` on it",
+                p.iter()
+                    .map(|p| p.to_string())
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            ))
+        })?;
+        crate::mission::prepare::select_seasons(&m, only)?;
+        let doc: toml::Table = toml::from_str(text)
+            .map_err(|e| Error::Usage(format!("the mission file is not TOML: {e}")))?;
+        let models = Models::with_weather(&m, weather_csv)?;
+        let ground = Ground::load(&m)?;
+        let horizons = crate::terrain::horizon::horizon_map(
+            &ground.dem,
+            crate::terrain::horizon::DEFAULT_SECTORS,
+            progress,
+        )?;
+        Ok(Study {
+            doc,
+            base,
+            exists,
+            only: only.to_vec(),
+            ground,
+            horizons,
+            models,
+        })
+    }
+
+    /// The mission with `values` written at the keys of `varies`.
+    pub fn mission(&self, varies: &[Vary], values: &[Value]) -> Prepared {
+        let mut doc = self.doc.clone();
+        for (v, x) in varies.iter().zip(values) {
+            set(&mut doc, &v.key, *x).map_err(|e| format!("{} = {}: {e}", v.key, x.text()))?;
+        }
+        let text = toml::to_string(&doc).map_err(|e| e.to_string())?;
+        let describe = || {
+            varies
+                .iter()
+                .zip(values)
+                .map(|(v, x)| format!("{} = {}", v.key, x.text()))
+                .collect::<Vec<_>>()
+                .join(", ")
+        };
+        crate::mission::check(&text, self.base, self.exists).map_err(|p| {
+            format!(
+                "with {}: {}",
+                describe(),
+                p.iter()
+                    .map(|p| p.to_string())
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )
+        })
+    }
+
+    /// The seasons a case runs.
+    fn seasons(&self, m: &Mission) -> Result<Vec<Season>, String> {
+        crate::mission::prepare::select_seasons(m, &self.only).map_err(|e| e.to_string())
+    }
+
+    /// Simulates one mission along `planned` (or its unplannable verdict).
+    pub fn outcome(&self, m: &Mission, planned: &Result<Planned, PlanError>) -> CaseOutcome {
+        let seasons = match self.seasons(m) {
+            Ok(s) => s,
+            Err(e) => return invalid(e),
+        };
+        let summaries: Vec<SeasonSummary> = match planned {
+            Err(e) => unplannable(m, &seasons, e)
+                .into_iter()
+                .map(|r| r.summary)
+                .collect(),
+            Ok(p) => {
+                let models = match self.models.for_variant(m) {
+                    Ok(x) => x,
+                    Err(e) => return invalid(e.to_string()),
+                };
+                let setup = sim_setup(m, &models, p, Some(&self.horizons));
+                match run_seasons(&setup, &seasons) {
+                    Ok(rs) => rs.into_iter().map(|r| r.summary).collect(),
+                    Err(e) => return invalid(e.to_string()),
+                }
+            }
+        };
+        reduce(&summaries)
+    }
+
+    /// Plans `m`'s route.
+    pub fn plan(&self, m: &Mission) -> PlanOutcome {
+        plan(m, &self.ground).map_err(|e| e.to_string())
+    }
+
+    /// The part of a case's mission its route depends on (module doc).
+    fn route_key(m: &Prepared, doc_route: Option<String>) -> Option<String> {
+        m.as_ref().ok().and(doc_route)
+    }
+
+    fn route_text(&self, varies: &[Vary], values: &[Value]) -> Option<String> {
+        let mut doc = self.doc.clone();
+        for (v, x) in varies.iter().zip(values) {
+            set(&mut doc, &v.key, *x).ok()?;
+        }
+        let pick = |k: &str| doc.get(k).map(|v| toml::to_string(v).unwrap_or_default());
+        Some(format!("{:?}|{:?}", pick("route"), pick("rover")))
+    }
+
+    /// Runs the cases `indices` of the grid of `varies`, in parallel, reporting each
+    /// finished case to `progress`. Rows come back in the order of `indices`.
+    pub fn run(&self, varies: &[Vary], indices: &[usize], progress: &dyn Progress) -> Vec<Case> {
+        let values: Vec<Vec<Value>> = indices.iter().map(|&i| case_values(varies, i)).collect();
+        let missions: Vec<Prepared> = values.par_iter().map(|v| self.mission(varies, v)).collect();
+        // Plan each distinct route once.
+        let keys: Vec<Option<String>> = values
+            .iter()
+            .zip(&missions)
+            .map(|(v, m)| Self::route_key(m, self.route_text(varies, v)))
+            .collect();
+        let mut first_of: HashMap<&str, usize> = HashMap::new();
+        for (i, k) in keys.iter().enumerate() {
+            if let Some(k) = k {
+                first_of.entry(k.as_str()).or_insert(i);
+            }
+        }
+        let mut distinct: Vec<(&str, usize)> = first_of.into_iter().collect();
+        distinct.sort_by_key(|x| x.1);
+        progress.start("routes", distinct.len() as u64);
+        let done = AtomicU64::new(0);
+        let plans: HashMap<&str, Arc<PlanOutcome>> = distinct
+            .par_iter()
+            .map(|(k, i)| {
+                let m = missions[*i].as_ref().expect("keys only for valid missions");
+                let p = self.plan(m);
+                progress.update(done.fetch_add(1, Ordering::Relaxed) + 1);
+                (*k, Arc::new(p))
+            })
+            .collect();
+        progress.finish();
+        progress.start("cases", indices.len() as u64);
+        let done = AtomicU64::new(0);
+        let out = indices
+            .par_iter()
+            .zip(values.par_iter())
+            .zip(missions.par_iter().zip(keys.par_iter()))
+            .map(|((&index, values), (m, key))| {
+                let outcome = match (m, key) {
+                    (Err(e), _) => invalid(e.clone()),
+                    (Ok(m), Some(k)) => match plans[k.as_str()].as_ref() {
+                        Err(e) => invalid(e.clone()),
+                        Ok(planned) => self.outcome(m, planned),
+                    },
+                    (Ok(_), None) => invalid("the case's values could not be written".into()),
+                };
+                progress.update(done.fetch_add(1, Ordering::Relaxed) + 1);
+                Case {
+                    index,
+                    values: values.clone(),
+                    outcome,
+                }
+            })
+            .collect();
+        progress.finish();
+        out
+    }
+}
+
+/// The case indices of shard `k` of `n` (1-based `k`): every `n`-th case from `k - 1`,
+/// so that shards of a sweep whose cost grows along a key still balance.
+pub fn shard_indices(total: usize, k: usize, n: usize) -> Vec<usize> {
+    (k.saturating_sub(1)..total).step_by(n.max(1)).collect()
+}
