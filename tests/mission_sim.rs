@@ -133,6 +133,7 @@ fn setup<'a>(
         step_s: 60.0,
         stops: Vec::new(),
         start_local_h: 0.0,
+        sun_steps: None,
     }
 }
 

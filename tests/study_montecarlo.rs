@@ -209,6 +209,7 @@ fn setup(w: &World) -> SimSetup<'_> {
         step_s: 60.0,
         stops: Vec::new(),
         start_local_h: 0.0,
+        sun_steps: None,
     }
 }
 

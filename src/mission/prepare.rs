@@ -439,6 +439,7 @@ pub fn sim_setup<'a>(
         step_s: m.step_s,
         stops: planned.stops.clone(),
         start_local_h: m.start_local_h,
+        sun_steps: None,
     }
 }
 

@@ -183,6 +183,62 @@ pub struct SimSetup<'a> {
     /// Local hour at which the runner starts each season, 0 to 24 (the mission's
     /// `simulation.start_local_h`); [`simulate`] itself starts where it is told.
     pub start_local_h: f64,
+    /// Sun positions computed beforehand for this run's start and step (trade studies
+    /// share them between cases); ignored unless they match the run. None: computed.
+    pub sun_steps: Option<&'a SunSteps>,
+}
+
+/// The sun at the middle of every step of a run: `positions[k]` at
+/// `start + (k + ½)·step_s`, computed exactly as [`simulate`] does, so a run given them
+/// gives the same results to the bit.
+#[derive(Debug, Clone)]
+pub struct SunSteps {
+    /// The run's start.
+    pub start: DateTime<Utc>,
+    /// The run's step, s.
+    pub step_s: f64,
+    /// One position per step.
+    pub positions: Vec<crate::sun::position::SunPosition>,
+}
+
+/// Where a run's sun positions come from.
+enum SunSource<'a> {
+    /// Computed beforehand, one per step (at least as many as the run has).
+    Shared(&'a [crate::sun::position::SunPosition]),
+    /// Computed step by step.
+    Track(SunTrack),
+}
+
+/// The start and the middle of step `k`.
+fn step_instants(start: DateTime<Utc>, dt: f64, k: usize) -> (DateTime<Utc>, DateTime<Utc>) {
+    let t = start + Duration::milliseconds((k as f64 * dt * 1000.0) as i64);
+    (t, t + Duration::milliseconds((dt * 500.0) as i64))
+}
+
+fn sun_track(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<SunTrack, SimError> {
+    let end = start + Duration::milliseconds((setup.policy.deadline_s * 1000.0) as i64);
+    SunTrack::new(
+        start,
+        end + Duration::hours(1),
+        &setup.sky.observer,
+        setup.sky.delta_t_s,
+        DEFAULT_NODE_STEP_S,
+    )
+    .map_err(|e| SimError::Stage(e.to_string()))
+}
+
+/// The sun positions of a run of `setup` from `start` (see [`SunSteps`]).
+pub fn sun_steps(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<SunSteps, SimError> {
+    check(setup)?;
+    let track = sun_track(setup, start)?;
+    let steps = (setup.policy.deadline_s / setup.step_s).ceil() as usize;
+    Ok(SunSteps {
+        start,
+        step_s: setup.step_s,
+        positions: (0..steps)
+            .map(|k| track.at(step_instants(start, setup.step_s, k).1))
+            .collect(),
+    })
 }
 
 /// Why a run stopped short.
@@ -367,14 +423,15 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         }
     }
     let day0 = local_day(start, setup.utc_offset_s);
-    let track = SunTrack::new(
-        start,
-        end + Duration::hours(1),
-        &setup.sky.observer,
-        setup.sky.delta_t_s,
-        DEFAULT_NODE_STEP_S,
-    )
-    .map_err(|e| SimError::Stage(e.to_string()))?;
+    let steps = (setup.policy.deadline_s / setup.step_s).ceil() as usize;
+    let shared = setup
+        .sun_steps
+        .filter(|t| t.start == start && t.step_s == setup.step_s && t.positions.len() >= steps)
+        .map(|t| t.positions.as_slice());
+    let sun_at = match shared {
+        Some(p) => SunSource::Shared(p),
+        None => SunSource::Track(sun_track(setup, start)?),
+    };
     let mut pack_state = setup
         .pack
         .state_at(setup.initial_soc)
@@ -412,9 +469,11 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         if run.arrival.is_some() && setup.policy.end == EndCondition::Arrival {
             break;
         }
-        let t = start + Duration::milliseconds((k as f64 * dt * 1000.0) as i64);
-        let mid = t + Duration::milliseconds((dt * 500.0) as i64);
-        let sun = track.at(mid);
+        let (t, mid) = step_instants(start, dt, k);
+        let sun = match &sun_at {
+            SunSource::Shared(p) => p[k],
+            SunSource::Track(tr) => tr.at(mid),
+        };
         let daylight = sun.apparent_elevation_rad() > 0.0;
         let local_s = local_seconds(mid, setup.utc_offset_s);
         let in_hours = match setup.policy.drive_hours {

@@ -16,13 +16,20 @@
 //! path's reduced cost differs from its true cost by K·(z_goal − z_start), the same for
 //! every path, so the optimal path is unchanged. The search runs on c'.
 //!
-//! The heuristic is h'(v) = max(0, B(v → goal) − K·(z_goal − z_v)), where B is the
-//! objective's lower bound of the cost of the straight displacement. Admissible: any path
-//! from v to the goal costs at least B of its displacement (contract 1 summed over its
-//! steps with contract 2), and its reduced cost is its cost minus K·Δz. Consistent: for a
-//! step u → v, B(u → goal) ≤ B(u → v) + B(v → goal) ≤ c(u, v) + B(v → goal) (contract 2
-//! then 1); subtracting the potentials gives h'(u) ≤ c'(u, v) + h'(v); the max with 0
-//! keeps consistency because 0 is consistent with non-negative c'. So the first time a
+//! The heuristic is h'(v) = max(0, B(D(v, goal), Δz) − K·(z_goal − z_v)), where B is the
+//! objective's lower bound of the cost of a displacement with horizontal length D and rise
+//! Δz, and D is a distance no walk on the grid beats: with 8 neighbours the octile distance
+//! (a·diag + (b − a)·side for a ≤ b cells of offset, the length of the shortest
+//! 8-connected walk, equal to the step length for every single step), with 16 the
+//! straight-line distance. Admissible: any path from v to the goal has horizontal length
+//! at least D and costs at least B of it (contract 1 summed over its steps with contract
+//! 2, B non-decreasing in length), and its reduced cost is its cost minus K·Δz.
+//! Consistent: for a step u → v, D is a metric with D(u, v) the step's length, so
+//! B(D(u, goal)) ≤ B(D(u, v) + D(v, goal)) ≤ B(u → v) + B(v → goal) ≤ c(u, v) +
+//! B(v → goal) (monotone, contract 2, contract 1); subtracting the potentials gives
+//! h'(u) ≤ c'(u, v) + h'(v); the max with 0 keeps consistency because 0 is consistent
+//! with non-negative c'. (The octile distance is not a lower bound for knight moves: a
+//! (2, 1) step is √5 long, its octile distance 1 + √2; hence the 16-neighbour rule.) So the first time a
 //! cell is taken from the queue its cost is final, keys never decrease, and a monotone
 //! radix heap ([`super::queue`]) is enough.
 //!
@@ -424,13 +431,22 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let cs = self.dem.cell_size();
         let w = self.dem.width();
         let (gc, gr) = ((goal % w) as f64, (goal / w) as f64);
+        let octile = self.connectivity == Connectivity::Eight;
+        let diag_m = cs.dx_m.hypot(cs.dy_m);
         let heuristic = |v: usize, col: i64, row: i64| -> f64 {
-            let dx = (col as f64 - gc) * cs.dx_m;
-            let dy = (row as f64 - gr) * cs.dy_m;
+            let (a, b) = ((col as f64 - gc).abs(), (row as f64 - gr).abs());
+            // The shortest 8-connected walk (module doc); any walk for 16 neighbours.
+            let d = if octile {
+                if a >= b {
+                    b * diag_m + (a - b) * cs.dx_m
+                } else {
+                    a * diag_m + (b - a) * cs.dy_m
+                }
+            } else {
+                (a * cs.dx_m).hypot(b * cs.dy_m)
+            };
             let dz = z_goal - self.z(v);
-            let b = self
-                .objective
-                .lower_bound(self.model, (dx * dx + dy * dy).sqrt(), dz);
+            let b = self.objective.lower_bound(self.model, d, dz);
             (b - k * dz).max(0.0)
         };
         ws.g[start] = 0.0;

@@ -17,6 +17,9 @@
 //! `[route]` and `[rover]` sections: cases whose two sections are the same (after their
 //! values are written in) share one planned route, planned once.
 //!
+//! The sun positions of a season (site, start and step alike) are computed once and
+//! shared by every case that has them.
+//!
 //! # Determinism
 //! Cases run in parallel (rayon) but each is computed alone from its own inputs, and
 //! results come back in case order, so any thread count and any split into shards gives
@@ -25,14 +28,16 @@
 use std::collections::HashMap;
 use std::path::Path;
 use std::sync::atomic::{AtomicU64, Ordering};
-use std::sync::Arc;
+use std::sync::{Arc, Mutex};
 
 use rayon::prelude::*;
 
 use crate::error::Error;
 use crate::mission::prepare::{plan, sim_setup, unplannable, Ground, Models, Planned};
 use crate::mission::resolve::{Mission, Season};
-use crate::mission::runner::run_seasons;
+use crate::mission::runner::season_start;
+use crate::mission::sim::{simulate, sun_steps, SimSetup, SunSteps};
+use crate::mission::verdict::summarize;
 use crate::mission::verdict::SeasonSummary;
 use crate::plan::PlanError;
 use crate::progress::Progress;
@@ -129,6 +134,8 @@ pub struct Study<'a> {
     ground: Ground,
     horizons: HorizonMap,
     models: Models,
+    /// Sun positions by site, start and step, shared between cases.
+    suns: Mutex<HashMap<String, Arc<SunSteps>>>,
 }
 
 /// A case's mission, or why it has none.
@@ -177,6 +184,7 @@ impl<'a> Study<'a> {
             ground,
             horizons,
             models,
+            suns: Mutex::new(HashMap::new()),
         })
     }
 
@@ -229,13 +237,52 @@ impl<'a> Study<'a> {
                     Err(e) => return invalid(e.to_string()),
                 };
                 let setup = sim_setup(m, &models, p, Some(&self.horizons));
-                match run_seasons(&setup, &seasons) {
-                    Ok(rs) => rs.into_iter().map(|r| r.summary).collect(),
-                    Err(e) => return invalid(e.to_string()),
+                let mut out = Vec::with_capacity(seasons.len());
+                for season in &seasons {
+                    match self.season_summary(&setup, season) {
+                        Ok(s) => out.push(s),
+                        Err(e) => return invalid(e.to_string()),
+                    }
                 }
+                out
             }
         };
         reduce(&summaries)
+    }
+
+    /// One season of one case, with the sun positions shared between the cases that
+    /// have the same site, start and step (computed once, the same to the bit).
+    fn season_summary(
+        &self,
+        setup: &SimSetup<'_>,
+        season: &Season,
+    ) -> Result<SeasonSummary, crate::mission::sim::SimError> {
+        let start = season_start(season.date, setup.utc_offset_s, setup.start_local_h);
+        let key = format!(
+            "{:?}|{}|{}|{}|{}",
+            setup.sky.observer, setup.sky.delta_t_s, start, setup.step_s, setup.policy.deadline_s
+        );
+        let cached = self.suns.lock().ok().and_then(|c| c.get(&key).cloned());
+        let suns = match cached {
+            Some(t) => t,
+            None => {
+                let t = Arc::new(sun_steps(setup, start)?);
+                if let Ok(mut c) = self.suns.lock() {
+                    c.insert(key, t.clone());
+                }
+                t
+            }
+        };
+        let mut with_sun = setup.clone();
+        with_sun.sun_steps = Some(&suns);
+        let run = simulate(&with_sun, start)?;
+        Ok(summarize(
+            &season.name,
+            season.date,
+            &run,
+            setup.pack.params().reserve_soc,
+            setup.route.summary.length_m,
+        ))
     }
 
     /// Plans `m`'s route.
