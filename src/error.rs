@@ -31,6 +31,9 @@ pub enum Error {
         /// What is wrong in it.
         source: crate::terrain::mask::KeepOutError,
     },
+    /// A job's arrays would exceed the memory budget.
+    #[error(transparent)]
+    Memory(#[from] crate::limits::OverBudget),
     /// Ordering unordered sites.
     #[error(transparent)]
     Sites(#[from] crate::plan::sites::SiteError),

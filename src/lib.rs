@@ -69,6 +69,7 @@
 //! - [`report`]: output serialisers and the one atomic writer.
 //! - [`report::sweep`]: sweep.csv and the merging of shards.
 //! - [`report::heatmap`]: a sweep's heatmap.
+//! - [`limits`]: the memory budget checked before the large per-cell allocations.
 //! - [`error`]: the top-level error wrapping each stage's typed error.
 //!
 //! The numeric core does no I/O and prints nothing; the CLI in `src/main.rs` and
@@ -79,6 +80,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod limits;
 pub mod mission;
 pub mod plan;
 pub mod progress;

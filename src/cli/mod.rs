@@ -69,6 +69,10 @@ pub struct DemOptions {
     /// Refuse rasters with more cells than this (checked before reading the data).
     #[arg(long, value_name = "CELLS", default_value_t = DEFAULT_MAX_CELLS)]
     pub max_cells: u64,
+    /// Memory budget in MiB for the route planner's and the horizon maps' per-cell
+    /// arrays, checked before they are allocated.
+    #[arg(long, value_name = "MIB", default_value_t = sunward::limits::DEFAULT_MAX_MEMORY_MB)]
+    pub max_memory_mb: u64,
 }
 
 impl DemOptions {
@@ -76,6 +80,7 @@ impl DemOptions {
     pub fn read_options(&self) -> ReadOptions {
         ReadOptions {
             max_cells: self.max_cells,
+            max_memory_mb: self.max_memory_mb,
             png: self.cell_m.map(|cell_m| PngScale {
                 cell_m,
                 z_scale_m: self.z_scale,
@@ -89,6 +94,39 @@ impl DemOptions {
     pub fn load(&self, path: &Path) -> Result<sunward::terrain::Dem, Error> {
         Ok(sunward::terrain::io::read_dem(path, &self.read_options())?)
     }
+}
+
+/// Refuses a job on `dem` (read from `path`) whose per-cell arrays (`bytes`) exceed the
+/// memory budget carried by `opts`, before they are allocated.
+pub fn check_memory(
+    opts: &ReadOptions,
+    path: &Path,
+    dem: &sunward::terrain::Dem,
+    what: &str,
+    bytes: u64,
+) -> Result<(), Error> {
+    let size = (dem.width(), dem.height());
+    sunward::limits::check_grid(path, what, size, bytes, opts.max_memory_mb)?;
+    Ok(())
+}
+
+/// Refuses a mission whose seasons' time series (one sample per step up to the deadline,
+/// every season held at once) exceed the memory budget, before anything runs.
+pub fn check_series_memory(path: &Path, m: &sunward::mission::Mission) -> Result<(), Error> {
+    // `as` saturates: a step of 1e-300 s gives u64::MAX steps, not a wrap.
+    let steps = ((m.policy.deadline_s / m.step_s).ceil() as u64).saturating_add(1);
+    let seasons = m.seasons.len() as u64;
+    let sample = std::mem::size_of::<sunward::mission::sim::Sample>() as u64;
+    let bytes = sunward::limits::time_series_bytes(steps, seasons, sample);
+    let what = format!(
+        "the time series of {seasons} season(s) of up to {steps} steps ({} days at {} s)",
+        m.policy.deadline_s / 86_400.0,
+        m.step_s
+    );
+    let instead = "use a longer [simulation] step_s, a shorter [policy] deadline_days or fewer \
+                   seasons";
+    sunward::limits::check(path, what, bytes, m.terrain.read.max_memory_mb, instead)?;
+    Ok(())
 }
 
 /// A DEM given as the first positional argument, with its reading flags.

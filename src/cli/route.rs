@@ -378,6 +378,14 @@ pub fn run(a: RouteArgs) -> Result<(), Error> {
     let mut rover = load_rover(a.rover.as_deref())?;
     let limits = apply_limits(&a, &mut rover)?;
     let dem = a.dem.load(&a.terrain)?;
+    let need = sunward::limits::planner_bytes(dem.len() as u64);
+    super::check_memory(
+        &a.dem.read_options(),
+        &a.terrain,
+        &dem,
+        "the route planner's arrays",
+        need,
+    )?;
     let mut flags = cell_flags(&dem, a.max_roughness_m)?;
     if let Some(path) = &a.keep_out {
         block_keep_out(&dem, &mut flags, path, a.keep_out_lonlat)?;

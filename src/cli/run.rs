@@ -170,8 +170,20 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         source,
     })?;
     super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
+    super::check_series_memory(&a.mission, &m)?;
     let models = load_models(&m)?;
     let ground = Ground::load(&m)?;
+    let cells = ground.dem.len() as u64;
+    let need = sunward::limits::planner_bytes(cells)
+        + sunward::limits::horizon_bytes(cells, horizon::DEFAULT_SECTORS as u64);
+    let what = "the route planner's arrays and the horizon maps";
+    super::check_memory(
+        &m.terrain.read,
+        &m.terrain.dem_path,
+        &ground.dem,
+        what,
+        need,
+    )?;
     let seasons = select_seasons(&m, &a.season)?;
     prepare::check_weather_span(&m, &models, &seasons)?;
     let planned = match prepare::plan(&m, &ground)? {

@@ -242,6 +242,14 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
                 check_output(s, &[&a.dem.dem])?;
             }
             let dem = a.dem.load()?;
+            let need = sunward::limits::horizon_bytes(dem.len() as u64, a.sectors as u64);
+            super::check_memory(
+                &a.dem.opts.read_options(),
+                &a.dem.dem,
+                &dem,
+                "the horizon maps",
+                need,
+            )?;
             let map = horizon::horizon_map(&dem, a.sectors, &Bar::new())?;
             let bands: Vec<Vec<f32>> = (0..map.sectors()).map(|k| map.sector_degrees(k)).collect();
             let refs: Vec<&[f32]> = bands.iter().map(|b| b.as_slice()).collect();

@@ -550,6 +550,8 @@ fn terrain(
     let png = png_scale(t, out);
     let read = ReadOptions {
         max_cells: get(&t.max_cells).map_or(DEFAULT_MAX_CELLS, |n| n as u64),
+        max_memory_mb: get(&t.max_memory_mb)
+            .map_or(crate::limits::DEFAULT_MAX_MEMORY_MB, |n| n as u64),
         png: png?,
     };
     let keep_out_at = out.at(t.keep_out.as_ref().map(|k| k.span()));
@@ -954,6 +956,12 @@ fn check_stage<T: serde::de::DeserializeOwned>(
         let Err(e) = check(&value) else {
             return ok.then_some(value);
         };
+        // With a bad key already dropped, a complaint about keys that belong together
+        // ("capacity_wh and nominal_voltage_v must be given together") is about the
+        // drop, not about the file: report nothing more.
+        if !ok && matches!(e, BatteryError::Inconsistent { .. }) {
+            return None;
+        }
         ok = false;
         t = t.without(&battery_problem(prefix, &t, e, out)?);
     }
@@ -1583,4 +1591,34 @@ fn off_dem(p: &PlacedPoint, dem: &crate::terrain::Dem) -> Option<Problem> {
         detail,
         fix: "give map coordinates inside the terrain (see `sunward terrain info`)".into(),
     })
+}
+
+/// Route points on a cell the keep-out raster closes (any cell with data), as problems
+/// at the point's place in the file. `mask` must be on the DEM's grid (see
+/// [`keep_out_off_grid`]); points outside it are left to [`points_off_dem`].
+pub fn points_in_keep_out(
+    route: &RoutePlan,
+    dem: &crate::terrain::Dem,
+    mask: &crate::terrain::Dem,
+) -> Vec<Problem> {
+    let on_grid = (mask.width(), mask.height()) == (dem.width(), dem.height());
+    let closed = |p: &PlacedPoint| {
+        let (px, py) = dem.georef.to_pixel(p.point.x, p.point.y);
+        let inside = px >= 0.0 && py >= 0.0 && px < dem.width() as f64 && py < dem.height() as f64;
+        on_grid && inside && !mask.get(px as usize, py as usize).is_nan()
+    };
+    route
+        .points()
+        .into_iter()
+        .filter(|p| closed(p))
+        .map(|p| Problem {
+            key: p.key.clone(),
+            at: p.at,
+            detail: format!(
+                "{} ({}, {}) lies inside the keep-out area (a cell of terrain.keep_out with data)",
+                p.point.label, p.point.x, p.point.y
+            ),
+            fix: "move the point out of the keep-out area, or clear that cell of the mask".into(),
+        })
+        .collect()
 }

@@ -127,6 +127,7 @@ pub struct TerrainRaw {
     pub png_nodata: Option<Val<i64>>,
     pub keep_out: Option<Val<String>>,
     pub max_cells: Option<Val<i64>>,
+    pub max_memory_mb: Option<Val<i64>>,
 }
 
 /// One `[[route.sites]]` entry.
@@ -786,6 +787,7 @@ fn read_terrain(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> TerrainRaw {
         png_nodata: t.int("png_nodata", Interval::closed(0.0, 65_535.0), out),
         keep_out: t.text("keep_out", out),
         max_cells: t.int("max_cells", Interval::closed(1.0, 17_179_869_184.0), out),
+        max_memory_mb: t.int("max_memory_mb", Interval::closed(1.0, 1_073_741_824.0), out),
     }
 }
 

@@ -40,7 +40,8 @@ pub enum TerrainError {
     /// The header declares more cells than the configured limit.
     #[error(
         "{path}: the raster is {width} x {height} = {cells} cells, more than the limit of \
-         {limit} cells. Fix: crop or resample the raster, or raise the limit with --max-cells"
+         {limit} cells. Fix: crop or resample the raster, or raise the limit with --max-cells (in a \
+         mission file: max_cells under [terrain])"
     )]
     TooLarge {
         /// The file.
@@ -64,6 +65,16 @@ pub enum TerrainError {
         path: PathBuf,
         /// Number of cells.
         cells: usize,
+    },
+    /// The grid reads, but its georeference or values cannot describe real terrain.
+    #[error("{path}: {detail}. Fix: {fix}")]
+    Implausible {
+        /// The file.
+        path: PathBuf,
+        /// What is impossible about it.
+        detail: String,
+        /// What the user can do.
+        fix: &'static str,
     },
     /// A parameter of an analysis is out of range.
     #[error("invalid parameter {name} = {value}: {expected}")]

@@ -29,10 +29,22 @@ struct Header {
 
 /// Reads an ESRI ASCII grid, refusing more than `max_cells` cells before allocating.
 pub fn read(path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
-    let text = std::fs::read_to_string(path).map_err(|source| TerrainError::Io {
+    let bytes = std::fs::read(path).map_err(|source| TerrainError::Io {
         path: path.to_path_buf(),
         action: "reading",
         source,
+    })?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        TerrainError::malformed(
+            path,
+            FORMAT,
+            format!(
+                "byte {} is not text (the file is not ASCII or UTF-8)",
+                e.utf8_error().valid_up_to() + 1
+            ),
+            "an ESRI ASCII grid is plain text; check that this is not a binary raster \
+             with the wrong extension",
+        )
     })?;
     let prj = std::fs::read_to_string(path.with_extension("prj")).ok();
     parse(&text, prj.as_deref(), path, max_cells)
@@ -68,10 +80,10 @@ pub fn parse(
         }
         let value = parts
             .next()
-            .ok_or_else(|| bad(path, i + 1, format!("{key} has no value")))?;
+            .ok_or_else(|| bad(path, i + 1, format!("{key:?} has no value")))?;
         let num = value
             .parse::<f64>()
-            .map_err(|_| bad(path, i + 1, format!("{key} = {value:?} is not a number")))?;
+            .map_err(|_| bad(path, i + 1, format!("{key:?} = {value:?} is not a number")))?;
         let count = |v: f64| -> Result<u64, TerrainError> {
             if v >= 1.0 && v.fract() == 0.0 && v < 1e12 {
                 Ok(v as u64)
@@ -122,7 +134,9 @@ pub fn parse(
             limit: max_cells,
         });
     }
-    let mut data = Vec::with_capacity(cells as usize);
+    // Every value takes at least two bytes of text ("1 "), so a short file that declares
+    // many cells cannot make this reserve more than its own size.
+    let mut data = Vec::with_capacity((cells as usize).min(text.len() / 2 + 1));
     let mut last_line = 1;
     for (i, line) in lines {
         last_line = i + 1;

@@ -43,11 +43,28 @@ pub fn read(path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
 }
 
 /// Reads from any seekable stream; `path` only names the source in errors.
-pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<Dem, TerrainError> {
+pub fn read_from<R: Read + Seek>(
+    mut r: R,
+    path: &Path,
+    max_cells: u64,
+) -> Result<Dem, TerrainError> {
+    let file_len = stream_len(&mut r, path)?;
     let bad = |e: tiff::TiffError| {
         let detail = match &e {
-            tiff::TiffError::IoError(io) if io.kind() == std::io::ErrorKind::UnexpectedEof => {
+            // A seek past what the platform can address (EINVAL) is an offset beyond the
+            // end of the file too.
+            tiff::TiffError::IoError(io)
+                if matches!(
+                    io.kind(),
+                    std::io::ErrorKind::UnexpectedEof | std::io::ErrorKind::InvalidInput
+                ) =>
+            {
                 "the file ends before the data its header declares (truncated or damaged)"
+                    .to_string()
+            }
+            tiff::TiffError::FormatError(tiff::TiffFormatError::InconsistentSizesEncountered) => {
+                "the header's sizes disagree with each other (image size, samples per pixel, \
+                 strip or tile counts)"
                     .to_string()
             }
             other => other.to_string(),
@@ -83,7 +100,13 @@ pub fn read_from<R: Read + Seek>(r: R, path: &Path, max_cells: u64) -> Result<De
             limit: max_cells,
         });
     }
-    check_sample_type(&mut dec, path)?;
+    let bits = check_sample_type(&mut dec, path)?;
+    check_chunks(
+        &mut dec,
+        path,
+        cells.saturating_mul(u64::from(bits) / 8),
+        file_len,
+    )?;
     let (georef, south_up) = read_georef(&mut dec, path, h)?;
     let data = dec.read_image().map_err(bad)?;
     let mut values = to_f32(data, georef.nodata, path)?;
@@ -110,10 +133,91 @@ fn flip_rows(values: &mut [f32], width: usize) {
     }
 }
 
+/// The stream's length in bytes; the stream is left at its start.
+fn stream_len<R: Seek>(r: &mut R, path: &Path) -> Result<u64, TerrainError> {
+    let io = |source| TerrainError::Io {
+        path: path.to_path_buf(),
+        action: "reading",
+        source,
+    };
+    let len = r.seek(std::io::SeekFrom::End(0)).map_err(io)?;
+    r.seek(std::io::SeekFrom::Start(0)).map_err(io)?;
+    Ok(len)
+}
+
+/// Largest ratio of decoded to stored bytes believed for compressed chunks, with margin:
+/// Deflate cannot exceed about 1032:1 (zlib's technical notes; from memory), and a 12-bit
+/// LZW code stands for at most 4096 bytes (from memory).
+const MAX_EXPANSION: u64 = 4096;
+
+/// Before the decoder allocates the whole image: every strip or tile must lie inside the
+/// file, and the stored bytes must be able to hold the declared image (all of it when
+/// uncompressed, at most [`MAX_EXPANSION`] times when compressed). A tiny file that
+/// declares a large image is refused here instead of after a large allocation. Files
+/// with empty chunks (GDAL's sparse files) skip the size test.
+fn check_chunks<R: Read + Seek>(
+    dec: &mut Decoder<R>,
+    path: &Path,
+    image_bytes: u64,
+    file_len: u64,
+) -> Result<(), TerrainError> {
+    let mut vec_of = |tag| {
+        dec.find_tag_unsigned_vec::<u64>(tag)
+            .ok()
+            .flatten()
+            .unwrap_or_default()
+    };
+    let (mut offsets, mut counts) = (vec_of(Tag::StripOffsets), vec_of(Tag::StripByteCounts));
+    if offsets.is_empty() {
+        offsets = vec_of(Tag::TileOffsets);
+        counts = vec_of(Tag::TileByteCounts);
+    }
+    let compression = vec_of(Tag::Compression).first().copied().unwrap_or(1);
+    let truncated = |detail: String| {
+        TerrainError::malformed(
+            path,
+            FORMAT,
+            detail,
+            "check that the file is complete (was the download or copy cut short?)",
+        )
+    };
+    if let Some((i, (o, c))) = offsets
+        .iter()
+        .zip(&counts)
+        .enumerate()
+        .find(|(_, (&o, &c))| o.saturating_add(c) > file_len)
+    {
+        return Err(truncated(format!(
+            "the file ends before the data its header declares: data block {} of {} ({c} \
+             bytes at offset {o}) lies past the end of the {file_len}-byte file",
+            i + 1,
+            offsets.len()
+        )));
+    }
+    if counts.is_empty() || counts.contains(&0) {
+        return Ok(());
+    }
+    let stored: u64 = counts.iter().fold(0u64, |a, &c| a.saturating_add(c));
+    let ratio = if compression == 1 { 1 } else { MAX_EXPANSION };
+    if stored.saturating_mul(ratio) < image_bytes {
+        let how = if compression == 1 {
+            "uncompressed".to_string()
+        } else {
+            format!("even at {ratio}:1 compression")
+        };
+        return Err(truncated(format!(
+            "the data blocks are too small for the image the header declares: \
+             {image_bytes} bytes of pixels, {stored} bytes stored ({how})"
+        )));
+    }
+    Ok(())
+}
+
+/// Checks the pixel layout and sample format; returns the bits per sample.
 fn check_sample_type<R: Read + Seek>(
     dec: &mut Decoder<R>,
     path: &Path,
-) -> Result<(), TerrainError> {
+) -> Result<u8, TerrainError> {
     let color = dec.colortype().map_err(|e| {
         TerrainError::unsupported(
             path,
@@ -157,7 +261,7 @@ fn check_sample_type<R: Read + Seek>(
              UInt16, Int32 (and 8-bit, UInt32)",
         ));
     }
-    Ok(())
+    Ok(bits)
 }
 
 fn tag_f64s<R: Read + Seek>(dec: &mut Decoder<R>, tag: Tag) -> Option<Vec<f64>> {
@@ -237,9 +341,17 @@ fn read_georef<R: Read + Seek>(
 }
 
 fn parse_nodata(v: Value, path: &Path) -> Result<f64, TerrainError> {
+    let not_text = || {
+        TerrainError::malformed(
+            path,
+            FORMAT,
+            "the GDAL_NODATA tag (42113) is not text",
+            "set a numeric no-data value with gdal_edit.py -a_nodata VALUE",
+        )
+    };
     let text = match v {
         Value::Ascii(s) => s,
-        other => format!("{other:?}"),
+        _ => return Err(not_text()),
     };
     let t = text.trim_matches(|c: char| c.is_whitespace() || c == '\0');
     let parsed = match t.to_ascii_lowercase().as_str() {

@@ -4,7 +4,7 @@
 //! mapping: elevation_m = z_offset_m + z_scale_m × raw sample value. The grid's upper-left
 //! corner is placed at (0, 0) in a local metric CRS. An optional raw value marks no-data.
 
-use std::io::{BufReader, Write};
+use std::io::{BufRead, BufReader, Seek, Write};
 use std::path::Path;
 
 use crate::terrain::error::TerrainError;
@@ -27,34 +27,39 @@ pub struct PngScale {
 
 /// Reads a greyscale PNG heightmap.
 pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, TerrainError> {
-    if !(scale.cell_m > 0.0 && scale.cell_m.is_finite()) {
-        return Err(TerrainError::Parameter {
-            name: "cell size (--cell-m)",
-            value: scale.cell_m.to_string(),
-            expected: "a positive number of metres",
-        });
-    }
-    if !scale.z_scale_m.is_finite() || scale.z_scale_m == 0.0 || !scale.z_offset_m.is_finite() {
-        return Err(TerrainError::Parameter {
-            name: "vertical scale (--z-scale / --z-offset)",
-            value: format!("{} / {}", scale.z_scale_m, scale.z_offset_m),
-            expected: "a finite, non-zero scale and a finite offset, metres",
-        });
-    }
+    check_scale(scale)?;
     let file = std::fs::File::open(path).map_err(|source| TerrainError::Io {
         path: path.to_path_buf(),
         action: "reading",
         source,
     })?;
+    read_from(BufReader::new(file), path, scale, max_cells)
+}
+
+/// Reads a greyscale PNG heightmap from any buffered, seekable stream; `path` only names
+/// the source in errors.
+pub fn read_from<R: BufRead + Seek>(
+    r: R,
+    path: &Path,
+    scale: &PngScale,
+    max_cells: u64,
+) -> Result<Dem, TerrainError> {
+    check_scale(scale)?;
     let bad = |e: png::DecodingError| {
         TerrainError::malformed(
             path,
             FORMAT,
-            e.to_string(),
+            decoding_detail(&e),
             "check that the file is a complete PNG",
         )
     };
-    let mut decoder = png::Decoder::new(BufReader::new(file));
+    // The decoder's own ceiling (64 MiB by default) would refuse a legal 16-bit grid of
+    // 6000 × 6000 cells with an opaque message; give it room for the cell limit instead.
+    let bytes = usize::try_from(max_cells.saturating_mul(2))
+        .unwrap_or(usize::MAX)
+        .saturating_add(1 << 20)
+        .max(64 << 20);
+    let mut decoder = png::Decoder::new_with_limits(r, png::Limits { bytes });
     decoder.set_transformations(png::Transformations::IDENTITY);
     let mut reader = decoder.read_info().map_err(bad)?;
     let info = reader.info();
@@ -108,6 +113,40 @@ pub fn read(path: &Path, scale: &PngScale, max_cells: u64) -> Result<Dem, Terrai
         data,
         GeoRef::local(scale.cell_m),
     ))
+}
+
+/// The decoder's complaint in words: its own text, without the debug dump of chunk
+/// types it prints for a damaged chunk sequence.
+fn decoding_detail(e: &png::DecodingError) -> String {
+    let text = e.to_string();
+    match e {
+        png::DecodingError::LimitsExceeded => {
+            "the decoded image would need more memory than the cell limit allows".into()
+        }
+        _ if text.contains("ChunkType {") => {
+            "the chunk sequence is damaged (a chunk out of place, or a wrong chunk length)".into()
+        }
+        _ => text.trim_end_matches('.').to_string(),
+    }
+}
+
+/// Refuses a cell size or vertical mapping that would make every elevation meaningless.
+fn check_scale(scale: &PngScale) -> Result<(), TerrainError> {
+    if !(scale.cell_m > 0.0 && scale.cell_m.is_finite()) {
+        return Err(TerrainError::Parameter {
+            name: "cell size (--cell-m)",
+            value: scale.cell_m.to_string(),
+            expected: "a positive number of metres",
+        });
+    }
+    if !scale.z_scale_m.is_finite() || scale.z_scale_m == 0.0 || !scale.z_offset_m.is_finite() {
+        return Err(TerrainError::Parameter {
+            name: "vertical scale (--z-scale / --z-offset)",
+            value: format!("{} / {}", scale.z_scale_m, scale.z_offset_m),
+            expected: "a finite, non-zero scale and a finite offset, metres",
+        });
+    }
+    Ok(())
 }
 
 /// Encodes row-major sample bytes of one colour type and depth as a PNG.
