@@ -207,6 +207,7 @@ fn setup<'a>(c: &Case, route: &'a Route, rover: &'a Rover, s: &'a Stages) -> Sim
         },
         step_s: 60.0,
         stops: Vec::new(),
+        holds: Vec::new(),
         start_local_h: 0.0,
         sun_steps: None,
     }
