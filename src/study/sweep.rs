@@ -171,6 +171,18 @@ impl<'a> Study<'a> {
             .map_err(|e| Error::Usage(format!("the mission file is not TOML: {e}")))?;
         let models = Models::with_weather(&m, weather_csv)?;
         let ground = Ground::load(&m)?;
+        // Routes are planned in parallel: one set of planner arrays per thread.
+        let cells = ground.dem.len() as u64;
+        let threads = rayon::current_num_threads() as u64;
+        let need = crate::limits::planner_bytes(cells).saturating_mul(threads)
+            + crate::limits::horizon_bytes(cells, crate::terrain::horizon::DEFAULT_SECTORS as u64);
+        crate::limits::check_grid(
+            &m.terrain.dem_path,
+            &format!("the route planner's arrays for {threads} thread(s) and the horizon maps"),
+            (ground.dem.width(), ground.dem.height()),
+            need,
+            m.terrain.read.max_memory_mb,
+        )?;
         let horizons = crate::terrain::horizon::horizon_map(
             &ground.dem,
             crate::terrain::horizon::DEFAULT_SECTORS,
