@@ -266,6 +266,25 @@ fn sun_aware_planner_runs_beside_the_fixed_route() {
         .path()
         .join("out/route-sun-aware-spring-equinox.geojson")
         .is_file());
+    // The report shows both: summary.json's comparison, the season's two-planner chart
+    // and the side-by-side table in report.html.
+    let o = dir.path().join("out");
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(o.join("summary.json")).unwrap()).unwrap();
+    let c = &v["planner_comparison"][0];
+    assert_eq!(c["name"], "spring equinox");
+    assert_eq!(c["fixed_route"]["feasible"], true);
+    assert_eq!(c["sun_aware"]["planned"], true);
+    assert!(c["sun_aware"]["holds"].is_array());
+    assert_eq!(
+        c["sun_aware"]["min_soc"].as_f64().unwrap(),
+        v["seasons"][0]["min_soc"].as_f64().unwrap()
+    );
+    assert!(o.join("season-spring-equinox-planners.png").is_file());
+    assert!(o.join("season-spring-equinox-planners.svg").is_file());
+    let html = std::fs::read_to_string(o.join("report.html")).unwrap();
+    assert!(html.contains("Fixed route and sun-aware plan"));
+    assert!(html.contains("fixed route feasible / sun-aware plan feasible"));
 }
 
 /// `--planner sun-aware` refuses waypoints and sites with a message naming the fix.

@@ -224,9 +224,12 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
     let model = RoverStepModel::new(&m.rover);
     let planner = ground.planner(&m, &model);
-    let results = match a.planner {
-        PlannerKind::Fixed => results,
-        PlannerKind::SunAware => sun_aware(&a.out, &m, &planner, &setup, &seasons, results)?,
+    let (results, cmp) = match a.planner {
+        PlannerKind::Fixed => (results, None),
+        PlannerKind::SunAware => {
+            let (r, c) = sun_aware(&a.out, &m, &planner, &setup, &seasons, results)?;
+            (r, Some(c))
+        }
     };
     write_outputs(
         mission_dir,
@@ -237,6 +240,7 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         &planner,
         &results,
         mc.as_ref(),
+        cmp.as_ref(),
     )?;
     print_verdicts(&m, &results, &a.out);
     if let Some(mc) = &mc {
@@ -259,9 +263,17 @@ fn check_sun_aware(m: &Mission) -> Result<(), Error> {
     )))
 }
 
+/// The fixed route's runs beside the sun-aware plans': table rows for the report, one
+/// chart per season and the summary.json object.
+struct Comparison {
+    rows: Vec<(String, String, String)>,
+    charts: Vec<(String, sunward::report::plot::LineChart)>,
+    json: serde_json::Value,
+}
+
 /// `--planner sun-aware`: plans and replays every season, writes each season's route,
 /// prints the fixed route's verdicts beside the sun-aware ones; returns the sun-aware
-/// results (a season without a plan keeps the fixed route's).
+/// results (a season without a plan keeps the fixed route's) and the comparison.
 fn sun_aware(
     out: &Path,
     m: &Mission,
@@ -269,7 +281,7 @@ fn sun_aware(
     setup: &sunward::mission::sim::SimSetup<'_>,
     seasons: &[Season],
     fixed: Vec<SeasonResult>,
-) -> Result<Vec<SeasonResult>, Error> {
+) -> Result<(Vec<SeasonResult>, Comparison), Error> {
     use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareSettings};
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
     let settings = SunAwareSettings::default();
@@ -279,6 +291,13 @@ fn sun_aware(
         "{}: fixed route and sun-aware plan side by side",
         m.site.name
     );
+    let offset = m.site.utc_offset.local_minus_utc();
+    let mut cmp = Comparison {
+        rows: Vec::new(),
+        charts: Vec::new(),
+        json: serde_json::Value::Array(Vec::new()),
+    };
+    let mut seasons_json = Vec::new();
     for (f, s) in fixed.iter().zip(&planned) {
         let verdict = |r: &SeasonResult| {
             let v = if r.summary.feasible {
@@ -288,6 +307,15 @@ fn sun_aware(
             };
             format!("{v} (min SOC {:.1} %)", 100.0 * r.summary.min_soc)
         };
+        let side = |r: &SeasonResult| {
+            serde_json::json!({
+                "feasible": r.summary.feasible,
+                "min_soc": r.summary.min_soc,
+                "energy_generated_wh": r.summary.energy_generated_wh,
+                "reason": r.summary.reason,
+            })
+        };
+        let mut sun_json = side(&s.result);
         let plan = match &s.plan {
             Ok(p) => {
                 let held = p.waiting_s() / 3600.0;
@@ -296,6 +324,28 @@ fn sun_aware(
                     .expect("JSON values serialise");
                 let name = format!("route-sun-aware-{}.geojson", slug(&f.season.name));
                 write_atomic(&out.join(&name), |w| w.write_all(gj.as_bytes()))?;
+                let t0 = sunward::mission::runner::season_start(
+                    f.season.date,
+                    i64::from(offset),
+                    m.start_local_h,
+                );
+                let holds: Vec<serde_json::Value> = p
+                    .holds
+                    .iter()
+                    .filter_map(|h| {
+                        let row = p.route.profile.get(h.row)?;
+                        let until = t0 + chrono::Duration::milliseconds((h.until_s * 1e3) as i64);
+                        Some(serde_json::json!({
+                            "x": row.x, "y": row.y,
+                            "until": until.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+                        }))
+                    })
+                    .collect();
+                sun_json["planned"] = true.into();
+                sun_json["route_file"] = name.clone().into();
+                sun_json["route_length_m"] = p.route.summary.length_m.into();
+                sun_json["hours_not_driving"] = held.into();
+                sun_json["holds"] = holds.into();
                 format!(
                     "{}, {:.0} m, {} hold(s), {held:.1} h not driving, arrival after {:.1} h ({name})",
                     verdict(&s.result),
@@ -304,12 +354,37 @@ fn sun_aware(
                     p.arrival_s / 3600.0
                 )
             }
-            Err(e) => format!("{e}; the fixed route's run is reported"),
+            Err(e) => {
+                sun_json["planned"] = false.into();
+                sun_json["no_plan"] = e.to_string().into();
+                format!("{e}; the fixed route's run is reported")
+            }
         };
         crate::say!("  {:<18} fixed: {}", f.season.name, verdict(f));
         crate::say!("  {:<18} sun-aware: {plan}", "");
+        cmp.rows.push((
+            f.season.name.clone(),
+            format!("{} — {}", verdict(f), f.summary.reason),
+            plan,
+        ));
+        cmp.charts.push((
+            format!("season-{}-planners", slug(&f.season.name)),
+            sunward::report::season_plot::planners_chart(
+                &m.site.name,
+                f,
+                &s.result,
+                m.step_s,
+                offset,
+            ),
+        ));
+        seasons_json.push(serde_json::json!({
+            "name": f.season.name,
+            "fixed_route": side(f),
+            "sun_aware": sun_json,
+        }));
     }
-    Ok(planned.into_iter().map(|s| s.result).collect())
+    cmp.json = serde_json::Value::Array(seasons_json);
+    Ok((planned.into_iter().map(|s| s.result).collect(), cmp))
 }
 
 fn slug(name: &str) -> String {
@@ -353,6 +428,7 @@ fn unplannable(
 fn page_context(m: &Mission, route: &Route) -> PageContext {
     let a = |w: &str, v: String, s: &str| (w.to_string(), v, s.to_string());
     PageContext {
+        comparison: Vec::new(),
         mission: m.site.name.clone(),
         route_line: format!(
             "Route: {:.0} m along the ground, {:.0} Wh of battery energy, {:.1} h of driving \
@@ -451,6 +527,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     planner: &Planner<'_, M>,
     results: &[SeasonResult],
     mc: Option<&MonteCarlo>,
+    cmp: Option<&Comparison>,
 ) -> Result<(), Error> {
     let inputs = serde_json::json!({
         "site": {"name": m.site.name, "lat_deg": m.site.latitude_rad.to_degrees(),
@@ -473,6 +550,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     }
     let mut doc = summary(&m.site.name, results, inputs);
     doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
+    doc.planner_comparison = cmp.map(|c| c.json.clone());
     let text = summary_json(&doc);
     write_atomic(&out.join("summary.json"), |w| w.write_all(text.as_bytes()))?;
     let mut daily = format!("{DAILY_HEADER}\n");
@@ -543,6 +621,9 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         let chart = monte_carlo_chart(&m.site.name, &mc.results, m.battery.reserve_soc);
         charts.push(("montecarlo".to_string(), chart));
     }
+    if let Some(c) = cmp {
+        charts.extend(c.charts.iter().cloned());
+    }
     let mut figures = Vec::new();
     for (name, chart) in &charts {
         let png = render_png(chart).map_err(plot_err)?;
@@ -572,7 +653,11 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
             png: map_png,
         },
     );
-    let html = report_html(&page_context(m, route), results, &figures);
+    let mut ctx = page_context(m, route);
+    if let Some(c) = cmp {
+        ctx.comparison = c.rows.clone();
+    }
+    let html = report_html(&ctx, results, &figures);
     write_atomic(&out.join("report.html"), |w| w.write_all(html.as_bytes()))?;
     Ok(())
 }

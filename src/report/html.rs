@@ -23,6 +23,9 @@ pub struct PageContext {
     pub assumptions: Vec<(String, String, String)>,
     /// Route summary line.
     pub route_line: String,
+    /// With two planners: one row per season (season, fixed route's verdict, sun-aware
+    /// plan's verdict), shown beside each other after the verdict. Empty: one planner.
+    pub comparison: Vec<(String, String, String)>,
 }
 
 const B64: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
@@ -157,6 +160,25 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         ));
     }
     assumptions.push_str("</table>");
+    let comparison = if ctx.comparison.is_empty() {
+        String::new()
+    } else {
+        let mut t = String::from(
+            "<h2>Fixed route and sun-aware plan</h2><p>The verdict above is the sun-aware \
+             plan's; the fixed route's run of each season is beside it.</p><table><tr>\
+             <th class=l>season</th><th class=l>fixed route</th><th class=l>sun-aware plan</th></tr>",
+        );
+        for (season, fixed, sun) in &ctx.comparison {
+            t.push_str(&format!(
+                "<tr><td class=l>{}</td><td class=l>{}</td><td class=l>{}</td></tr>",
+                escape(season),
+                escape(fixed),
+                escape(sun)
+            ));
+        }
+        t.push_str("</table>");
+        t
+    };
     let cautions: String = CAUTIONS
         .iter()
         .map(|c| format!("<li>{}</li>", escape(c)))
@@ -164,7 +186,7 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
     format!(
         "<!DOCTYPE html><html lang=en><head><meta charset=utf-8><title>sunward report: {m}</title>\
          <style>{STYLE}</style></head><body><h1>sunward report: {m}</h1>\
-         <h2>Verdict</h2>{headline}{verdicts}<p>{route}</p>\
+         <h2>Verdict</h2>{headline}{verdicts}<p>{route}</p>{comparison}\
          <div class=caution><ul>{cautions}</ul></div>\
          <h2>Charts</h2>{figs}<h2>Daily energy budgets</h2>{budgets}\
          <h2>Assumptions and sources</h2>{assumptions}\

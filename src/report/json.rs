@@ -73,6 +73,10 @@ pub struct Summary<'a> {
     /// The weather Monte Carlo, when one was run.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<MonteCarloJson>,
+    /// With `--planner sun-aware`: per season, the fixed route's verdict beside the
+    /// sun-aware plan's, and the plan's holds.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub planner_comparison: Option<serde_json::Value>,
 }
 
 /// The weather Monte Carlo of a run (`run --monte-carlo N`).
@@ -169,6 +173,7 @@ pub fn summary<'a>(
         inputs,
         cautions: CAUTIONS,
         monte_carlo: None,
+        planner_comparison: None,
     }
 }
 

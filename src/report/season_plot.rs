@@ -1,7 +1,9 @@
 //! The season chart of a mission run: power generated and power consumed (by the main
 //! categories) on the left axis, state of charge on the right, nights shaded; and the
 //! seasons compared on one chart (state of charge of each season against time since its
-//! start).
+//! start); and, for `--planner sun-aware`, the fixed route's run and the sun-aware plan's
+//! run of one season on one chart (power generated and state of charge of each), which
+//! shows where the light was gained or lost.
 //!
 //! # Units
 //! Watts, percent, hours; times as local clock time.
@@ -135,7 +137,7 @@ pub fn seasons_chart(site: &str, results: &[SeasonResult]) -> LineChart {
         .collect();
     LineChart {
         title: format!("{site}: state of charge, seasons compared"),
-        x_label: "hours since the season's start (local midnight)".into(),
+        x_label: "hours since the season's start".into(),
         x_kind: XKind::Numeric,
         y_left: YAxis {
             label: "state of charge (%)".into(),
@@ -144,6 +146,75 @@ pub fn seasons_chart(site: &str, results: &[SeasonResult]) -> LineChart {
         y_right: None,
         series,
         bands: Vec::new(),
+        size_px: (1200, 650),
+    }
+}
+
+/// One season run twice: along the fixed route and along the sun-aware plan (module doc).
+pub fn planners_chart(
+    site: &str,
+    fixed: &SeasonResult,
+    sun_aware: &SeasonResult,
+    step_s: f64,
+    utc_offset_s: i32,
+) -> LineChart {
+    let v = |r: &SeasonResult| {
+        if r.summary.feasible {
+            "feasible"
+        } else {
+            "INFEASIBLE"
+        }
+    };
+    let (f, a) = (&fixed.run.samples, &sun_aware.run.samples);
+    let longer = if a.len() > f.len() { a } else { f };
+    LineChart {
+        title: format!(
+            "{site}: {} — fixed route {} / sun-aware plan {}",
+            fixed.season.name,
+            v(fixed),
+            v(sun_aware)
+        ),
+        x_label: format!("local time (UTC{:+.1} h)", f64::from(utc_offset_s) / 3600.0),
+        x_kind: XKind::Time { utc_offset_s },
+        y_left: YAxis {
+            label: "power generated (W)".into(),
+            range: None,
+        },
+        y_right: Some(YAxis {
+            label: "state of charge (%)".into(),
+            range: Some((0.0, 100.0)),
+        }),
+        series: vec![
+            series(
+                "generated, fixed route",
+                f,
+                Side::Left,
+                Some([230, 159, 0]),
+                |x| x.generated_w,
+            ),
+            series(
+                "generated, sun-aware plan",
+                a,
+                Side::Left,
+                Some([0, 158, 115]),
+                |x| x.generated_w,
+            ),
+            series(
+                "state of charge, fixed route",
+                f,
+                Side::Right,
+                Some([0, 0, 0]),
+                |x| 100.0 * x.soc,
+            ),
+            series(
+                "state of charge, sun-aware plan",
+                a,
+                Side::Right,
+                Some([0, 114, 178]),
+                |x| 100.0 * x.soc,
+            ),
+        ],
+        bands: nights(longer, step_s),
         size_px: (1200, 650),
     }
 }
