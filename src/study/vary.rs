@@ -9,7 +9,7 @@
 //! the file leaves out is added (its section too), so defaults can be varied. The
 //! `[terrain]` keys cannot be varied (the terrain is read once per study).
 //!
-//! One key that is not in the file: `seasons.start_date` varies the season's start date
+//! One key that is not in the file: `seasons.start_date` (or `route.start_date`) varies the season's start date
 //! (`A` and `B` as `YYYY-MM-DD`, `STEP` in whole days, e.g. `7` or `7d`); each case runs
 //! that one date (the `[seasons]` section becomes `mode = "dates"` with that date).
 //!
@@ -30,6 +30,9 @@ pub const MAX_VALUES_PER_KEY: usize = 100_000;
 
 /// The virtual key for the season's start date.
 pub const START_DATE_KEY: &str = "seasons.start_date";
+
+/// Another name for [`START_DATE_KEY`] (the mission's start date is the route's too).
+pub const START_DATE_ALIAS: &str = "route.start_date";
 
 /// The virtual key for the duty of every payload load (every load not named in
 /// `policy.survival_loads`).
@@ -145,6 +148,11 @@ impl Vary {
                 "write A:B:STEP (three parts) or a single value",
             ));
         }
+        let key = if key == START_DATE_ALIAS {
+            START_DATE_KEY
+        } else {
+            key
+        };
         let values = if key == START_DATE_KEY {
             date_values(spec, &parts)?
         } else {
@@ -427,6 +435,11 @@ mod tests {
     #[test]
     fn dates_step_in_days() {
         let v = Vary::parse("seasons.start_date=2027-01-01:2027-01-31:10d").unwrap();
+        let alias = Vary::parse("route.start_date=2027-01-01:2027-01-31:10d").unwrap();
+        assert_eq!(
+            (alias.key.as_str(), &alias.values),
+            (START_DATE_KEY, &v.values)
+        );
         let t: Vec<String> = v.values.iter().map(Value::text).collect();
         assert_eq!(t, ["2027-01-01", "2027-01-11", "2027-01-21", "2027-01-31"]);
     }
