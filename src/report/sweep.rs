@@ -253,20 +253,23 @@ pub fn heatmap(p: &Parsed, title: &str) -> Option<Heatmap> {
     })
 }
 
-/// For a one-key sweep: min SOC against the key's value, infeasible values shaded. The
-/// values are plotted by their number (dates as days since 1970). None unless one key.
+/// For a one-key sweep: min SOC against the key's value, infeasible values shaded; dates
+/// on a time axis. None unless one key.
 pub fn line(p: &Parsed, title: &str) -> Option<LineChart> {
     if p.keys.len() != 1 {
         return None;
     }
+    // Dates go on a time axis (seconds since 1970 at midnight UTC of the date).
+    let dates = p
+        .rows
+        .first()
+        .is_some_and(|r| chrono::NaiveDate::parse_from_str(&r.0[0], "%Y-%m-%d").is_ok());
+    let epoch = chrono::NaiveDate::from_ymd_opt(1970, 1, 1).expect("valid");
     let x = |s: &str| {
         s.parse::<f64>().ok().or_else(|| {
             chrono::NaiveDate::parse_from_str(s, "%Y-%m-%d")
                 .ok()
-                .map(|d| {
-                    (d - chrono::NaiveDate::from_ymd_opt(1970, 1, 1).expect("valid")).num_days()
-                        as f64
-                })
+                .map(|d| 86_400.0 * (d - epoch).num_days() as f64)
         })
     };
     let pts: Vec<(f64, f64, bool)> = p
@@ -292,8 +295,16 @@ pub fn line(p: &Parsed, title: &str) -> Option<LineChart> {
         .collect();
     Some(LineChart {
         title: format!("{title}: lowest state of charge"),
-        x_label: p.keys[0].clone(),
-        x_kind: XKind::Numeric,
+        x_label: if dates {
+            format!("{} (month-day)", p.keys[0])
+        } else {
+            p.keys[0].clone()
+        },
+        x_kind: if dates {
+            XKind::Time { utc_offset_s: 0 }
+        } else {
+            XKind::Numeric
+        },
         y_left: YAxis {
             label: "min SOC (%)".into(),
             range: Some((0.0, 100.0)),
