@@ -91,6 +91,28 @@ fn read_text(path: &Path) -> Result<String, Error> {
     })
 }
 
+fn is_file(p: &Path) -> bool {
+    p.is_file()
+}
+
+/// How a study looks up the mission's input files.
+static EXISTS: fn(&Path) -> bool = is_file;
+
+/// The study of a mission file (its terrain, horizon map and weather file read once),
+/// with the file's text.
+fn open_study<'a>(
+    mission: &Path,
+    base: &'a Path,
+    m: &sunward::mission::Mission,
+    season: &[String],
+    progress: &dyn sunward::progress::Progress,
+) -> Result<(Study<'a>, String), Error> {
+    let text = read_text(mission)?;
+    let weather = weather_text(m)?;
+    let study = Study::new(&text, base, &EXISTS, season, weather.as_deref(), progress)?;
+    Ok((study, text))
+}
+
 /// FNV-1a, 64 bits (Fowler, Noll and Vo): a fingerprint of the mission text, so that
 /// shards of different missions are not merged.
 fn fingerprint(text: &str) -> String {
@@ -224,21 +246,11 @@ pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
         source,
     })?;
     super::check_output(&a.out.join("sweep.csv"), &[&a.mission])?;
-    let text = read_text(&a.mission)?;
     let base = a.mission.parent().unwrap_or(Path::new("")).to_path_buf();
-    let exists = |p: &Path| p.is_file();
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let weather = weather_text(&m)?;
-    let study = Study::new(
-        &text,
-        &base,
-        &exists,
-        &a.season,
-        weather.as_deref(),
-        progress,
-    )?;
+    let (study, text) = open_study(&a.mission, &base, &m, &a.season, progress)?;
     // Check each key's ends alone first, so a bad range fails before any case runs.
     for v in &varies {
         for end in [v.values[0], v.values[v.values.len() - 1]] {
@@ -391,21 +403,11 @@ fn round_sig(v: f64) -> String {
 
 pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let m = load_mission(&a.mission)?;
-    let text = read_text(&a.mission)?;
     let base = a.mission.parent().unwrap_or(Path::new("")).to_path_buf();
-    let exists = |p: &Path| p.is_file();
     let silent = sunward::progress::Silent;
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
-    let weather = weather_text(&m)?;
-    let study = Study::new(
-        &text,
-        &base,
-        &exists,
-        &a.season,
-        weather.as_deref(),
-        progress,
-    )?;
+    let (study, _) = open_study(&a.mission, &base, &m, &a.season, progress)?;
     let what = match a.what {
         SizeWhat::Battery => What::Battery,
         SizeWhat::Panels => What::Panels,
