@@ -337,3 +337,35 @@ fn sun_aware_planner_goes_through_waypoints_and_sites() {
         assert!(stay >= l["payload_s"].as_f64().unwrap(), "{l}");
     }
 }
+
+/// `--planner sun-aware` refuses a site in the goal's cell (the run ends on arrival, so
+/// its payload run would never happen), before any season runs, naming the fix.
+#[test]
+fn sun_aware_planner_refuses_a_site_at_the_goal() {
+    let dir = tempfile::tempdir().unwrap();
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let terrain = root.join("terrains/vardholm_plateau.tif");
+    let text = std::fs::read_to_string(mission())
+        .unwrap()
+        .replace("x_m = 1500.0\ny_m = 1600.0", "x_m = 1820.0\ny_m = 1760.0")
+        .replace(
+            "file = \"../terrains/vardholm_plateau.tif\"",
+            &format!("file = {:?}", terrain.display().to_string()),
+        );
+    assert!(text.contains("x_m = 1820.0"));
+    let path = dir.path().join("site-at-goal.toml");
+    std::fs::write(&path, text).unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(&path)
+        .args(["--planner", "sun-aware", "--quiet", "--out"])
+        .arg(dir.path().join("out"))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("tarn shore"), "{err}");
+    assert!(err.contains("another cell than the goal"), "{err}");
+    assert!(err.contains("--planner fixed"), "{err}");
+}

@@ -1,6 +1,7 @@
 //! Sun-aware planning: a route *and* a schedule (where to wait, and until when) that
-//! reaches the goal with the state of charge never below the reserve, found by a
-//! time-dependent search over (place, time) with the state of charge as a resource.
+//! reaches the goal through the waypoints and the sites (with their payload runs) with
+//! the state of charge never below the reserve, found by a time-dependent search over
+//! (place, time) with the state of charge as a resource.
 //!
 //! # Method
 //! A resource-constrained shortest-path search with label dominance (labels and
@@ -65,20 +66,58 @@
 //! coarse plan's route; the better of the two plans is kept (the coarse one when the
 //! refined search finds nothing better or runs out of labels).
 //!
-//! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
-//! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
-//! ordinary [`simulate`] with [`Hold`]s reproduces the search's energy to the last few
-//! bits (see `tests/mission_sunaware.rs`).
+//! A leg whose end the lattice cannot reach at all (the `Tilt` bound: a passage
+//! narrower than a block, or an end on a slope whose straight approaches are too steep)
+//! is searched again with half the block, down to the fine grid; such a leg is not
+//! refined again.
+//!
+//! # Waypoints, sites and legs
+//! [`plan_sun_aware_via`] plans leg by leg: start → each [`Visit`] in the order given
+//! (waypoints first, then the sites in the order the fixed pipeline chooses,
+//! [`crate::mission::prepare::plan`]) → goal. Each leg is one search as above, from the
+//! previous leg's end state (time, pack, battery box, losses, the open simulation step
+//! and the attitude the rover arrived with) to the next point. At a waypoint the rover
+//! drives on; at a site the leg's last move includes the payload run: the rover parks
+//! (hotel on, loads scheduled `at_site` on with the site's clock, even outside the
+//! driving hours) for as many simulation steps as the simulation's site clock needs
+//! (the walker's `visit`), and the run must keep the reserve like any other move, so a
+//! leg's arrivals are compared on the state *after* the payload run. The legs are joined
+//! into one fine-grid route with the holds, a [`Stop`] per site, and a hold at each
+//! site's row until the payload run ends (merged with the next leg's first wait), so
+//! that the simulation keeps the arrival attitude there as the search did. The joined
+//! plan is walked once more from the start through the step arithmetic (the ledger
+//! reported) and must end in the last leg's state.
+//!
+//! **Greedy across legs.** Each leg takes the best arrival *for that leg* (earliest, or
+//! most charge) and the next leg starts from it; the labels of the other arrivals are
+//! dropped. A later arrival with more charge at a site could let a later leg go faster
+//! (or at all), so the plan is not optimal over the whole route, and a leg can fail
+//! where a plan with another earlier leg exists. It is acceptable because (a) every plan
+//! found is still safe and exact (each leg carries its exact energy state, and the
+//! joined plan is replayed), so greed costs optimality, never safety; (b) with the
+//! earliest-arrival objective an earlier arrival can always wait in place until a later
+//! one's time, so a greedy leg gives up only what a better-lit place would have earned
+//! in that gap; and (c) carrying every Pareto label across legs would multiply each
+//! leg's search by the size of the previous front. A library caller whose later leg
+//! fails can plan again with [`SunAwareObjective::MostCharge`] (each leg arrives
+//! fullest); the CLI does not retry.
+//!
+//! The plan comes back on the fine grid (the edges' fine paths joined) with its holds
+//! and stops, and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays
+//! it: the ordinary [`simulate`] with [`Hold`]s and [`Stop`]s reproduces the search's
+//! energy to the last few bits (see `tests/mission_sunaware.rs`).
 //!
 //! # Bounds
 //! The time horizon (the policy's deadline) and a label budget (`max_labels`; memory is
 //! about `max_labels` × the label size, reported in [`SearchStats::label_bytes`]). When
 //! no plan exists the error names the bound that bit: the goal unreachable on the
 //! lattice whatever the time (tilt or another cell block), the label budget, labels cut
-//! at the reserve everywhere, or labels that could not arrive before the horizon.
+//! at the reserve everywhere, or labels that could not arrive before the horizon; with
+//! several legs it also names the leg (`2 of 5, from waypoint 1 to lichen transect`).
 //!
 //! # Limits
-//! One goal, no waypoints and no payload stops; the lattice uses the 8 neighbours (not
+//! Greedy across legs (above); a site in the goal's cell is refused (the run ends on
+//! arrival, before any payload run there; [`check_visits`]); the lattice uses the 8 neighbours (not
 //! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
 //! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
 //! reserve). Besides the labels, memory goes to the lattice edges computed (about 56
@@ -1057,12 +1096,18 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             Bound::Tilt,
             format!(
                 "the goal cannot be reached on the {}-cell lattice at any time: edges are \
-                 closed by {}; try a smaller block (--block-cells) or check the tilt limits",
+                 closed by {}; {}",
                 self.lat.b,
                 if list.is_empty() {
                     "the grid's edge".to_string()
                 } else {
                     list.join(", ")
+                },
+                if self.lat.b == 1 {
+                    "the fine grid's 8 neighbours have no way there either: check the tilt \
+                     limits, the keep-out and no-data cells, or move the point"
+                } else {
+                    "try a smaller block (block_cells) or check the tilt limits"
                 }
             ),
         ))
