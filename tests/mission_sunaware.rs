@@ -1,17 +1,19 @@
 //! The sun-aware planner (`mission::sunaware`): its plans replay in the ordinary
 //! simulation with the same energy, it survives a shadowed valley where the fixed route
 //! is stranded under every policy tried, it agrees with the fixed route on open flat
-//! terrain, and it names the bound that bit when there is no plan.
+//! terrain, it goes through waypoints and sites in order with the payload runs (and still
+//! replays exactly), and it names the bound that bit (and the leg) when there is no plan.
 
 use chrono::{DateTime, NaiveDate, Utc};
 use sunward::battery::ambient::{Ambient, MonthlyClimate};
-use sunward::battery::loads::Loads;
+use sunward::battery::loads::{LoadSpec, Loads, Schedule};
 use sunward::battery::pack::Pack;
 use sunward::battery::params::PackParams;
 use sunward::battery::thermal::{ThermalNode, ThermalParams};
-use sunward::mission::sim::{simulate, DriveHours, EndCondition, Policy, SimSetup, SkySetup};
+use sunward::mission::sim::{simulate, DriveHours, EndCondition, Policy, SimSetup, SkySetup, Stop};
 use sunward::mission::sunaware::{
-    plan_sun_aware, Bound, SunAwareError, SunAwareObjective, SunAwarePlan, SunAwareSettings,
+    plan_sun_aware, plan_sun_aware_via, Bound, SunAwareError, SunAwareObjective, SunAwarePlan,
+    SunAwareSettings, Visit,
 };
 use sunward::plan::{
     plan_route, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
@@ -225,6 +227,7 @@ fn check_replay(plan: &SunAwarePlan, template: &SimSetup<'_>) {
         ("generated", a.generated_wh, b.generated_wh),
         ("drive", a.drive_wh, b.drive_wh),
         ("hotel", a.hotel_wh, b.hotel_wh),
+        ("payload", a.payload_wh, b.payload_wh),
         ("heater", a.heater_wh, b.heater_wh),
         ("losses", a.losses_wh, b.losses_wh),
         ("stored", a.stored_delta_wh, b.stored_delta_wh),
@@ -438,4 +441,184 @@ fn no_plan_names_the_bound_that_bit() {
     let (b, detail) = bound_of(plan(policy(96.0), &to, &tiny, 1.0));
     assert_eq!(b, Bound::LabelBudget);
     assert!(detail.contains("20 labels"), "{detail}");
+}
+
+/// Open flat terrain, one waypoint and one site with a two-hour payload run (a 40 W
+/// instrument scheduled `at_site` for those two hours): the plan drives start → waypoint
+/// → site → goal in that order, parks at the site for the payload run with the
+/// instrument on (40 W × 2 h = 80 Wh by hand), and replays exactly through the
+/// simulation with its payload stop, whatever the mount and the driving hours. With
+/// driving allowed at any hour it matches the fixed route through the same points with
+/// the same stop (same length, arrival and charge).
+#[test]
+fn waypoint_and_site_visited_in_order_with_the_payload_run() {
+    let dem = flat(100, 30);
+    let flags = CellFlags::from_dem(&dem);
+    let k = Kit {
+        loads: Loads::new(vec![LoadSpec {
+            name: "spectrometer".into(),
+            power_w: 40.0,
+            duty: 1.0,
+            schedule: Schedule::AtSite { minutes: 120.0 },
+        }])
+        .unwrap(),
+        ..kit(2000.0)
+    };
+    let model = RoverStepModel::new(&k.rover);
+    let p = planner(&dem, &flags, &model);
+    let h = dem.height();
+    // Lattice-aligned points (8-cell blocks from the start): diagonal, straight,
+    // diagonal and straight legs, so that the lattice holds a shortest path of each.
+    let from = at("start", 4, 4, h);
+    let cairn = at("cairn", 20, 20, h);
+    let site = at("transect", 52, 20, h);
+    let to = at("goal", 84, 4, h);
+    let payload_s = 7200.0;
+    let visits = [
+        Visit {
+            point: cairn.clone(),
+            payload_s: None,
+        },
+        Visit {
+            point: site.clone(),
+            payload_s: Some(payload_s),
+        },
+    ];
+    let fixed = plan_route(&p, &[from.clone(), cairn.clone(), site.clone(), to.clone()]).unwrap();
+    let site_cell = [52, 20];
+    let site_row = fixed.cells().iter().position(|c| *c == site_cell).unwrap();
+    let settings = SunAwareSettings {
+        block_cells: 8,
+        bucket_s: 1800.0,
+        ..SunAwareSettings::default()
+    };
+    let always = Policy {
+        drive_hours: DriveHours::Always,
+        ..policy(48.0)
+    };
+    let mut template = setup(&fixed, &k, None, always);
+    template.stops = vec![Stop {
+        row: site_row,
+        duration_s: payload_s,
+    }];
+    let plan =
+        plan_sun_aware_via(&p, &template, &from, &visits, &to, start_time(), &settings).unwrap();
+    // In order: each leg ends at its point, further along the route than the one before.
+    let names: Vec<&str> = plan.legs.iter().map(|l| l.to.as_str()).collect();
+    assert_eq!(names, ["cairn", "transect", "goal"]);
+    let cells = plan.route.cells();
+    for (leg, cell) in plan.legs.iter().zip([[20, 20], site_cell, [84, 4]]) {
+        assert_eq!(cells[leg.end_row], cell, "{leg:?}");
+    }
+    assert!(plan.legs.windows(2).all(|l| l[0].end_row < l[1].end_row));
+    assert_eq!(plan.legs[2].end_row, cells.len() - 1);
+    // The payload run: one stop at the site's row, and the rover leaves the site at
+    // least the payload time after it arrived (at most two steps more: the rest of the
+    // step of the arrival and the site clock's last step).
+    assert_eq!(
+        plan.stops,
+        [Stop {
+            row: plan.legs[1].end_row,
+            duration_s: payload_s
+        }]
+    );
+    let stay = plan.legs[1].done_s - plan.legs[1].arrival_s;
+    assert!(
+        stay >= payload_s && stay < payload_s + 2.0 * template.step_s,
+        "{stay} s at the site"
+    );
+    assert!(
+        (plan.ledger.payload_wh - 80.0).abs() < 1e-9,
+        "{} Wh",
+        plan.ledger.payload_wh
+    );
+    check_replay(&plan, &template);
+    // The fixed route with the same stop: same length, arrival and charge.
+    let run = simulate(&template, start_time()).unwrap();
+    let arrival_s = (run.arrival.unwrap() - start_time()).num_milliseconds() as f64 / 1000.0;
+    assert!((plan.route.summary.length_m - fixed.summary.length_m).abs() < 1e-6);
+    assert!(
+        (plan.arrival_s - arrival_s).abs() < 1e-2,
+        "sun-aware {} s, fixed {arrival_s} s",
+        plan.arrival_s
+    );
+    assert!((plan.final_soc - run.samples.last().unwrap().soc).abs() < 1e-6);
+    assert!((run.ledger.payload_wh - 80.0).abs() < 1e-9);
+
+    // Daylight driving (the start is at midnight: the plan waits for the sun), and
+    // panels tilted toward the rover's right, whose output depends on the heading the
+    // rover keeps while it waits and while the payload runs; and a 14-hour payload run
+    // that goes on through the night, when the rover would otherwise sleep.
+    let tilted = Mount::FixedTilt {
+        tilt_rad: 40f64.to_radians(),
+        relative_azimuth_rad: 90f64.to_radians(),
+    };
+    for (mount, run_s) in [
+        (template.mount, payload_s),
+        (tilted, payload_s),
+        (tilted, 14.0 * 3600.0),
+    ] {
+        let mut day = setup(&fixed, &k, None, policy(48.0));
+        day.mount = mount;
+        let mut visits = visits.clone();
+        visits[1].payload_s = Some(run_s);
+        let plan =
+            plan_sun_aware_via(&p, &day, &from, &visits, &to, start_time(), &settings).unwrap();
+        assert!(!plan.holds.is_empty());
+        assert_eq!(plan.stops.len(), 1);
+        let stay = plan.legs[1].done_s - plan.legs[1].arrival_s;
+        assert!(stay >= run_s && stay < run_s + 2.0 * day.step_s);
+        assert!((plan.ledger.payload_wh - 80.0).abs() < 1e-9);
+        assert!(plan.min_soc >= k.pack.params().reserve_soc);
+        check_replay(&plan, &day);
+    }
+}
+
+/// A leg without a plan is named, with its bound: the site lies behind the valley's wall.
+#[test]
+fn no_plan_names_the_leg() {
+    let dem = valley();
+    let flags = CellFlags::from_dem(&dem);
+    let k = kit(200.0);
+    let model = RoverStepModel::new(&k.rover);
+    let p = planner(&dem, &flags, &model);
+    let h = dem.height();
+    let (from, to) = (at("start", 8, 40, h), at("goal", 232, 40, h));
+    let fixed = plan_route(&p, &[from.clone(), to.clone()]).unwrap();
+    let template = setup(&fixed, &k, None, policy(96.0));
+    let visits = [
+        Visit {
+            point: at("bench", 64, 16, h),
+            payload_s: None,
+        },
+        Visit {
+            point: at("ridge top", 120, 60, h),
+            payload_s: Some(600.0),
+        },
+    ];
+    let settings = SunAwareSettings::default();
+    let r = plan_sun_aware_via(&p, &template, &from, &visits, &to, start_time(), &settings);
+    let Err(e @ SunAwareError::NoPlan { .. }) = r else {
+        panic!("expected no plan, got {r:?}");
+    };
+    let SunAwareError::NoPlan { leg, bound, .. } = &e else {
+        unreachable!()
+    };
+    assert_eq!(bound, &Bound::Tilt);
+    assert_eq!(leg.as_deref(), Some("2 of 3, from bench to ridge top"));
+    let text = e.to_string();
+    assert!(
+        text.starts_with("no sun-aware plan for the leg 2 of 3, from bench to ridge top:"),
+        "{text}"
+    );
+    // A site in the goal's cell is refused (its payload run would never happen).
+    let at_goal = [Visit {
+        point: to.clone(),
+        payload_s: Some(600.0),
+    }];
+    let r = plan_sun_aware_via(&p, &template, &from, &at_goal, &to, start_time(), &settings);
+    assert!(
+        matches!(&r, Err(SunAwareError::Setting { name: "site", .. })),
+        "{r:?}"
+    );
 }

@@ -287,20 +287,85 @@ fn sun_aware_planner_runs_beside_the_fixed_route() {
     assert!(html.contains("fixed route feasible / sun-aware plan feasible"));
 }
 
-/// `--planner sun-aware` refuses waypoints and sites with a message naming the fix.
+/// `--planner sun-aware` on the bundled survey mission (a waypoint and three sites):
+/// the summer run plans leg by leg through the waypoint and the sites in the fixed
+/// route's order with their payload runs, replays, and prints both planners' verdicts.
 #[test]
-fn sun_aware_planner_refuses_waypoints_and_sites() {
+fn sun_aware_planner_goes_through_waypoints_and_sites() {
     let dir = tempfile::tempdir().unwrap();
     let out = Command::cargo_bin("sunward")
         .unwrap()
         .arg("run")
         .arg(mission())
-        .args(["--planner", "sun-aware", "--out"])
+        .args([
+            "--planner",
+            "sun-aware",
+            "--season",
+            "summer",
+            "--quiet",
+            "--out",
+        ])
         .arg(dir.path())
+        .output()
+        .unwrap();
+    let text =
+        String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{text}");
+    assert!(text.contains("fixed: FEASIBLE"), "{text}");
+    assert!(text.contains("sun-aware: FEASIBLE"), "{text}");
+    assert!(text.contains("3 payload run(s)"), "{text}");
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.path().join("summary.json")).unwrap())
+            .unwrap();
+    let c = &v["planner_comparison"][0];
+    assert_eq!(c["sun_aware"]["planned"], true);
+    let legs: Vec<&str> = c["sun_aware"]["legs"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|l| l["to"].as_str().unwrap())
+        .collect();
+    // The waypoint, then the sites in the order the fixed route visits them, then the goal.
+    assert_eq!(legs.len(), 5, "{legs:?}");
+    assert_eq!(legs[0], "waypoint 1");
+    let mut sites = legs[1..4].to_vec();
+    sites.sort_unstable();
+    assert_eq!(sites, ["lichen transect", "scarp foot", "tarn shore"]);
+    // Each site's payload run lasts at least its payload time (4, 6 and 4 hours).
+    for l in &c["sun_aware"]["legs"].as_array().unwrap()[1..4] {
+        let stay = l["done_s"].as_f64().unwrap() - l["arrival_s"].as_f64().unwrap();
+        assert!(stay >= l["payload_s"].as_f64().unwrap(), "{l}");
+    }
+}
+
+/// `--planner sun-aware` refuses a site in the goal's cell (the run ends on arrival, so
+/// its payload run would never happen), before any season runs, naming the fix.
+#[test]
+fn sun_aware_planner_refuses_a_site_at_the_goal() {
+    let dir = tempfile::tempdir().unwrap();
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let terrain = root.join("terrains/vardholm_plateau.tif");
+    let text = std::fs::read_to_string(mission())
+        .unwrap()
+        .replace("x_m = 1500.0\ny_m = 1600.0", "x_m = 1820.0\ny_m = 1760.0")
+        .replace(
+            "file = \"../terrains/vardholm_plateau.tif\"",
+            &format!("file = {:?}", terrain.display().to_string()),
+        );
+    assert!(text.contains("x_m = 1820.0"));
+    let path = dir.path().join("site-at-goal.toml");
+    std::fs::write(&path, text).unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(&path)
+        .args(["--planner", "sun-aware", "--quiet", "--out"])
+        .arg(dir.path().join("out"))
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
-    assert!(err.contains("start to goal only"), "{err}");
+    assert!(err.contains("tarn shore"), "{err}");
+    assert!(err.contains("another cell than the goal"), "{err}");
     assert!(err.contains("--planner fixed"), "{err}");
 }

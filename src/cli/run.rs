@@ -53,8 +53,9 @@ pub struct RunArgs {
     #[arg(long, value_name = "S", requires = "monte_carlo", default_value_t = DEFAULT_SEED)]
     seed: u64,
     /// `fixed`: the A* route driven by the mission's policy. `sun-aware`: per season, a
-    /// route and a schedule of holds from a time-dependent search that keeps the reserve
-    /// (start and goal only; the fixed route's verdicts are printed beside it).
+    /// route and a schedule of holds from a time-dependent search that keeps the reserve,
+    /// leg by leg through the waypoints and the sites (the fixed route's site order and
+    /// payload runs); the fixed route's verdicts are printed beside it.
     #[arg(long, value_enum, default_value_t = PlannerKind::Fixed)]
     planner: PlannerKind,
 }
@@ -158,9 +159,6 @@ pub fn run_mission(
 
 fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let m = load_mission(&a.mission)?;
-    if a.planner == PlannerKind::SunAware {
-        check_sun_aware(&m)?;
-    }
     let laws = match a.monte_carlo {
         Some(_) => Some(daily_laws(&a.mission, &m)?),
         None => None,
@@ -190,6 +188,12 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         Ok(p) => p,
         Err(e) => return unplannable(a, &m, &seasons, &e),
     };
+    let model = RoverStepModel::new(&m.rover);
+    let planner = ground.planner(&m, &model);
+    let visits = sun_aware_visits(&m, &planned.order);
+    if a.planner == PlannerKind::SunAware {
+        check_sun_aware(&m, &planner, &visits)?;
+    }
     let route = &planned.route;
     if !a.quiet {
         eprintln!(
@@ -222,12 +226,10 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         _ => None,
     };
     let mission_dir = a.mission.parent().unwrap_or(Path::new(""));
-    let model = RoverStepModel::new(&m.rover);
-    let planner = ground.planner(&m, &model);
     let (results, cmp) = match a.planner {
         PlannerKind::Fixed => (results, None),
         PlannerKind::SunAware => {
-            let (r, c) = sun_aware(&a.out, &m, &planner, &setup, &seasons, results)?;
+            let (r, c) = sun_aware(&a.out, &m, &planner, &setup, &seasons, &visits, results)?;
             (r, Some(c))
         }
     };
@@ -249,18 +251,37 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     Ok(results.iter().all(|r| r.summary.feasible))
 }
 
-/// `--planner sun-aware` needs a mission from start to goal (checked before any work).
-fn check_sun_aware(m: &Mission) -> Result<(), Error> {
-    if m.route.waypoints.is_empty() && m.route.sites.is_empty() {
-        return Ok(());
-    }
-    Err(Error::Usage(format!(
-        "{}: --planner sun-aware plans from start to goal only, and the mission has {} \
-         waypoint(s) and {} site(s). Fix: remove them from [route] or use --planner fixed",
-        m.site.name,
-        m.route.waypoints.len(),
-        m.route.sites.len()
-    )))
+/// The points the sun-aware plan visits between start and goal: the waypoints in their
+/// order, then the sites in the fixed route's visiting order with their payload runs.
+fn sun_aware_visits(m: &Mission, order: &[usize]) -> Vec<sunward::mission::sunaware::Visit> {
+    use sunward::mission::sunaware::Visit;
+    let waypoints = m.route.waypoints.iter().map(|w| Visit {
+        point: w.point.clone(),
+        payload_s: None,
+    });
+    let sites = order.iter().map(|&i| Visit {
+        point: m.route.sites[i].place.point.clone(),
+        payload_s: Some(m.route.sites[i].payload_s),
+    });
+    waypoints.chain(sites).collect()
+}
+
+/// What `--planner sun-aware` cannot plan is refused before the seasons run: a site in
+/// the goal's cell (the run ends on arrival, so its payload run would never happen).
+fn check_sun_aware(
+    m: &Mission,
+    planner: &Planner<'_, RoverStepModel<'_>>,
+    visits: &[sunward::mission::sunaware::Visit],
+) -> Result<(), Error> {
+    use sunward::mission::sunaware::check_visits;
+    check_visits(planner, &m.route.start.point, visits, &m.route.goal.point).map_err(|e| {
+        Error::Usage(format!(
+            "{}: --planner sun-aware cannot plan this route: {e}. Fix: move the site or the \
+             goal into another cell, or use --planner fixed",
+            m.site.name
+        ))
+    })?;
+    Ok(())
 }
 
 /// The fixed route's runs beside the sun-aware plans': table rows for the report, one
@@ -280,12 +301,13 @@ fn sun_aware(
     planner: &Planner<'_, RoverStepModel<'_>>,
     setup: &sunward::mission::sim::SimSetup<'_>,
     seasons: &[Season],
+    visits: &[sunward::mission::sunaware::Visit],
     fixed: Vec<SeasonResult>,
 ) -> Result<(Vec<SeasonResult>, Comparison), Error> {
     use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareSettings};
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
     let settings = SunAwareSettings::default();
-    let planned = run_seasons_sun_aware(planner, setup, seasons, start, goal, &settings)
+    let planned = run_seasons_sun_aware(planner, setup, seasons, start, visits, goal, &settings)
         .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
     crate::say!(
         "{}: fixed route and sun-aware plan side by side",
@@ -346,11 +368,14 @@ fn sun_aware(
                 sun_json["route_length_m"] = p.route.summary.length_m.into();
                 sun_json["hours_not_driving"] = held.into();
                 sun_json["holds"] = holds.into();
+                sun_json["legs"] = serde_json::to_value(&p.legs).expect("JSON values serialise");
                 format!(
-                    "{}, {:.0} m, {} hold(s), {held:.1} h not driving, arrival after {:.1} h ({name})",
+                    "{}, {:.0} m, {} hold(s), {} payload run(s), {held:.1} h not driving, \
+                     arrival after {:.1} h ({name})",
                     verdict(&s.result),
                     p.route.summary.length_m,
                     p.holds.len(),
+                    p.stops.len(),
                     p.arrival_s / 3600.0
                 )
             }

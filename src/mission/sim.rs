@@ -43,6 +43,10 @@
 //! hours and asleep outside them (as the policy's sleep rule says); while it holds, its
 //! panels keep the attitude of the step it arrived on (without holds the parked rover
 //! takes the attitude of the step it is about to drive). With no holds nothing changes.
+//! A hold at a site's row covers its payload run too (the sun-aware planner holds there
+//! at least until the payload run ends, so the rover keeps the attitude it arrived with):
+//! while the payload runs the rover is parked as at any site; once it is done, the hold
+//! goes on until its time.
 //!
 //! # Limits
 //! Without a weather record the sky is the clear sky, scaled (an upper bound of real
@@ -522,7 +526,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         let holding = setup.holds.get(next_hold).is_some_and(|h| {
             h.row + 1 == prog.next && prog.into_step_s == 0.0 && elapsed_s < h.until_s
         });
-        let activity = if holding {
+        // A payload run at a site is parked (hotel on) even where a hold also applies.
+        let activity = if holding && !at_site {
             if !in_hours && setup.policy.sleep_outside_hours {
                 Activity::Asleep
             } else {

@@ -1,6 +1,7 @@
 //! Sun-aware planning: a route *and* a schedule (where to wait, and until when) that
-//! reaches the goal with the state of charge never below the reserve, found by a
-//! time-dependent search over (place, time) with the state of charge as a resource.
+//! reaches the goal through the waypoints and the sites (with their payload runs) with
+//! the state of charge never below the reserve, found by a time-dependent search over
+//! (place, time) with the state of charge as a resource.
 //!
 //! # Method
 //! A resource-constrained shortest-path search with label dominance (labels and
@@ -65,20 +66,58 @@
 //! coarse plan's route; the better of the two plans is kept (the coarse one when the
 //! refined search finds nothing better or runs out of labels).
 //!
-//! The plan comes back on the fine grid (the edges' fine paths joined) with its holds,
-//! and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays it: the
-//! ordinary [`simulate`] with [`Hold`]s reproduces the search's energy to the last few
-//! bits (see `tests/mission_sunaware.rs`).
+//! A leg whose end the lattice cannot reach at all (the `Tilt` bound: a passage
+//! narrower than a block, or an end on a slope whose straight approaches are too steep)
+//! is searched again with half the block, down to the fine grid; such a leg is not
+//! refined again.
+//!
+//! # Waypoints, sites and legs
+//! [`plan_sun_aware_via`] plans leg by leg: start → each [`Visit`] in the order given
+//! (waypoints first, then the sites in the order the fixed pipeline chooses,
+//! [`crate::mission::prepare::plan`]) → goal. Each leg is one search as above, from the
+//! previous leg's end state (time, pack, battery box, losses, the open simulation step
+//! and the attitude the rover arrived with) to the next point. At a waypoint the rover
+//! drives on; at a site the leg's last move includes the payload run: the rover parks
+//! (hotel on, loads scheduled `at_site` on with the site's clock, even outside the
+//! driving hours) for as many simulation steps as the simulation's site clock needs
+//! (the walker's `visit`), and the run must keep the reserve like any other move, so a
+//! leg's arrivals are compared on the state *after* the payload run. The legs are joined
+//! into one fine-grid route with the holds, a [`Stop`] per site, and a hold at each
+//! site's row until the payload run ends (merged with the next leg's first wait), so
+//! that the simulation keeps the arrival attitude there as the search did. The joined
+//! plan is walked once more from the start through the step arithmetic (the ledger
+//! reported) and must end in the last leg's state.
+//!
+//! **Greedy across legs.** Each leg takes the best arrival *for that leg* (earliest, or
+//! most charge) and the next leg starts from it; the labels of the other arrivals are
+//! dropped. A later arrival with more charge at a site could let a later leg go faster
+//! (or at all), so the plan is not optimal over the whole route, and a leg can fail
+//! where a plan with another earlier leg exists. It is acceptable because (a) every plan
+//! found is still safe and exact (each leg carries its exact energy state, and the
+//! joined plan is replayed), so greed costs optimality, never safety; (b) with the
+//! earliest-arrival objective an earlier arrival can always wait in place until a later
+//! one's time, so a greedy leg gives up only what a better-lit place would have earned
+//! in that gap; and (c) carrying every Pareto label across legs would multiply each
+//! leg's search by the size of the previous front. A library caller whose later leg
+//! fails can plan again with [`SunAwareObjective::MostCharge`] (each leg arrives
+//! fullest); the CLI does not retry.
+//!
+//! The plan comes back on the fine grid (the edges' fine paths joined) with its holds
+//! and stops, and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays
+//! it: the ordinary [`simulate`] with [`Hold`]s and [`Stop`]s reproduces the search's
+//! energy to the last few bits (see `tests/mission_sunaware.rs`).
 //!
 //! # Bounds
 //! The time horizon (the policy's deadline) and a label budget (`max_labels`; memory is
 //! about `max_labels` × the label size, reported in [`SearchStats::label_bytes`]). When
 //! no plan exists the error names the bound that bit: the goal unreachable on the
 //! lattice whatever the time (tilt or another cell block), the label budget, labels cut
-//! at the reserve everywhere, or labels that could not arrive before the horizon.
+//! at the reserve everywhere, or labels that could not arrive before the horizon; with
+//! several legs it also names the leg (`2 of 5, from waypoint 1 to lichen transect`).
 //!
 //! # Limits
-//! One goal, no waypoints and no payload stops; the lattice uses the 8 neighbours (not
+//! Greedy across legs (above); a site in the goal's cell is refused (the run ends on
+//! arrival, before any payload run there; [`check_visits`]); the lattice uses the 8 neighbours (not
 //! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
 //! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
 //! reserve). Besides the labels, memory goes to the lattice edges computed (about 56
@@ -100,7 +139,7 @@ use chrono::{DateTime, Utc};
 use crate::mission::ledger::{daily_budgets, Ledger};
 use crate::mission::resolve::Season;
 use crate::mission::runner::{season_start, SeasonResult};
-use crate::mission::sim::{simulate, EndCondition, Hold, SimError, SimSetup};
+use crate::mission::sim::{simulate, EndCondition, Hold, SimError, SimSetup, Stop};
 use crate::mission::verdict::summarize;
 use crate::plan::astar::DIRECTIONS;
 use crate::plan::route::{locate, route_along};
@@ -209,8 +248,13 @@ impl SearchStats {
 pub struct SunAwarePlan {
     /// The route on the fine grid.
     pub route: Route,
-    /// Where and until when the rover waits.
+    /// Where and until when the rover waits (at a site: at least until its payload run
+    /// ends).
     pub holds: Vec<Hold>,
+    /// The payload runs at the sites, in visiting order.
+    pub stops: Vec<Stop>,
+    /// The legs, start to goal: one per waypoint and site, and the last to the goal.
+    pub legs: Vec<PlanLeg>,
     /// Arrival, seconds after the start.
     pub arrival_s: f64,
     /// State of charge after the step of the arrival.
@@ -224,25 +268,53 @@ pub struct SunAwarePlan {
 }
 
 impl SunAwarePlan {
-    /// Seconds from the start to the arrival not spent driving (holds, and the ends of
-    /// the simulation steps in which a hold begins).
+    /// Seconds from the start to the arrival not spent driving (holds, payload runs,
+    /// and the ends of the simulation steps in which a hold or a payload run begins).
     pub fn waiting_s(&self) -> f64 {
         (self.arrival_s - self.route.summary.duration_s).max(0.0)
     }
 
     /// The setup that replays this plan with [`crate::mission::sim::simulate`]:
-    /// `template` with this route and holds, no payload stops, state-of-charge
-    /// thresholds at zero (the plan keeps the reserve) and the run ending at arrival.
+    /// `template` with this route, holds and payload stops, state-of-charge thresholds
+    /// at zero (the plan keeps the reserve) and the run ending at arrival.
     pub fn replay_setup<'a>(&'a self, template: &SimSetup<'a>) -> SimSetup<'a> {
         let mut s = template.clone();
         s.route = &self.route;
-        s.stops = Vec::new();
+        s.stops = self.stops.clone();
         s.holds = self.holds.clone();
         s.policy.min_soc_to_drive = 0.0;
         s.policy.resume_soc = 0.0;
         s.policy.end = EndCondition::Arrival;
         s
     }
+}
+
+/// A point between the start and the goal that a plan must reach, in the order given.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Visit {
+    /// Where (its label names the leg in messages).
+    pub point: RoutePoint,
+    /// The payload run there, seconds, for a site (the rover parks with the `at_site`
+    /// loads on); `None` for a waypoint, driven through.
+    pub payload_s: Option<f64>,
+}
+
+/// One leg of a plan, from one point to the next.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct PlanLeg {
+    /// The label of the point the leg starts from.
+    pub from: String,
+    /// The label of the point it ends at.
+    pub to: String,
+    /// The row of the plan's route profile where it ends.
+    pub end_row: usize,
+    /// Arrival at its end, seconds after the start.
+    pub arrival_s: f64,
+    /// When the rover leaves its end (after the payload run at a site), seconds after
+    /// the start; the arrival for a waypoint and the goal.
+    pub done_s: f64,
+    /// The payload run at its end, seconds (a site).
+    pub payload_s: Option<f64>,
 }
 
 /// The bound that left the search without a plan.
@@ -279,8 +351,13 @@ pub enum SunAwareError {
     #[error(transparent)]
     Sim(#[from] SimError),
     /// The search ended without a plan.
-    #[error("no sun-aware plan: {detail}")]
+    #[error(
+        "no sun-aware plan{}: {detail}",
+        leg.as_deref().map(|l| format!(" for the leg {l}")).unwrap_or_default()
+    )]
     NoPlan {
+        /// The leg without a plan (`from A to B`) when the plan has several.
+        leg: Option<String>,
         /// The bound that bit.
         bound: Bound,
         /// What happened, in words, with the fix.
@@ -301,32 +378,276 @@ pub fn plan_sun_aware<M: StepModel + ?Sized>(
     t0: DateTime<Utc>,
     settings: &SunAwareSettings,
 ) -> Result<SunAwarePlan, SunAwareError> {
+    plan_sun_aware_via(planner, setup, start, &[], goal, t0, settings)
+}
+
+/// Plans from `start` through `visits` in their order (waypoints driven through, sites
+/// with their payload runs) to `goal`, leg by leg (module doc), for a run of `setup`
+/// (its route, stops and holds are ignored) beginning at `t0`.
+pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    setup: &SimSetup<'_>,
+    start: &RoutePoint,
+    visits: &[Visit],
+    goal: &RoutePoint,
+    t0: DateTime<Utc>,
+    settings: &SunAwareSettings,
+) -> Result<SunAwarePlan, SunAwareError> {
     check_settings(planner, setup, settings)?;
-    let (s_cell, g_cell) = (locate(planner, start)?, locate(planner, goal)?);
-    if s_cell == g_cell {
-        return Err(setting(
-            "goal",
-            format!("{}, {}", goal.x, goal.y),
-            "a goal in another cell than the start",
-        ));
-    }
+    let cells = check_visits(planner, start, visits, goal)?;
     let clock = Clock::new(setup, t0)?;
     let walker = Walker {
         setup,
         clock: &clock,
         reserve_soc: setup.pack.params().reserve_soc,
     };
-    let b = settings.block_cells;
-    let coarse_lat = Lattice::new(planner, b, s_cell, g_cell);
-    let mut coarse = search_once(planner, coarse_lat, &walker, settings, None)?;
+    let mut names = vec![start.label.as_str()];
+    names.extend(visits.iter().map(|v| v.point.label.as_str()));
+    names.push(goal.label.as_str());
+    let w = planner.dem.width();
+    let mut at = LegStart {
+        cell: cells[0],
+        walk: walker.start()?,
+        att: Attitude::default(),
+    };
+    let (mut route_cells, mut holds, mut stops, mut legs) =
+        (vec![cells[0]], Vec::new(), Vec::new(), Vec::new());
+    let mut stats = SearchStats::default();
+    let n = cells.len() - 1;
+    for k in 0..n {
+        let end = match visits.get(k) {
+            None => LegEnd::Arrive,
+            Some(v) => v.payload_s.map_or(LegEnd::Pass, LegEnd::Visit),
+        };
+        let leg_name =
+            (n > 1).then(|| format!("{} of {n}, from {} to {}", k + 1, names[k], names[k + 1]));
+        let name = |e: SunAwareError| match e {
+            SunAwareError::NoPlan {
+                bound,
+                detail,
+                stats,
+                ..
+            } => SunAwareError::NoPlan {
+                leg: leg_name.clone(),
+                bound,
+                detail,
+                stats,
+            },
+            e => e,
+        };
+        let base = route_cells.len() - 1;
+        let arrival_s = if cells[k + 1] == at.cell {
+            // A point in the cell of the one before: nothing to drive.
+            let t = at.walk.t_s;
+            let pose = Pose {
+                col: at.cell % w,
+                row: at.cell / w,
+                att: at.att,
+            };
+            let done = match end {
+                LegEnd::Visit(p) => walker.visit(&mut at.walk, &pose, p, None),
+                LegEnd::Arrive => walker.arrive(&mut at.walk, &pose, None),
+                LegEnd::Pass => Ok(()),
+            };
+            if let Err(h) = done {
+                let (bound, what) = match h {
+                    Halt::Horizon => (Bound::Horizon, "runs past the deadline"),
+                    _ => (Bound::Reserve, "runs below the reserve state of charge"),
+                };
+                return Err(name(SunAwareError::NoPlan {
+                    leg: None,
+                    bound,
+                    detail: format!(
+                        "the payload run at {} {what}; a larger battery or panels, an \
+                         earlier start or a later deadline may help",
+                        names[k + 1]
+                    ),
+                    stats: Box::new(stats),
+                }));
+            }
+            t
+        } else {
+            let leg = plan_leg(planner, &walker, &at, cells[k + 1], end, settings).map_err(name)?;
+            for h in &leg.holds {
+                push_hold(&mut holds, base + h.row, h.until_s);
+            }
+            route_cells.extend(leg.route.profile[1..].iter().map(|r| r.row * w + r.col));
+            let last = leg.route.profile.last().expect("a leg has rows");
+            at.att = Attitude {
+                heading_rad: last.heading_rad,
+                pitch_rad: last.pitch_rad,
+                roll_rad: last.roll_rad,
+            };
+            at.walk = leg.end;
+            stats.nodes = stats.nodes.max(leg.stats.nodes);
+            stats.refine_nodes += leg.stats.refine_nodes;
+            stats.refined |= leg.stats.refined;
+            stats.label_bytes = leg.stats.label_bytes;
+            stats.add(&leg.stats);
+            leg.arrival_s
+        };
+        at.cell = cells[k + 1];
+        let row = route_cells.len() - 1;
+        if let LegEnd::Visit(p) = end {
+            stops.push(Stop { row, duration_s: p });
+            push_hold(&mut holds, row, at.walk.t_s);
+        }
+        legs.push(PlanLeg {
+            from: names[k].to_string(),
+            to: names[k + 1].to_string(),
+            end_row: row,
+            arrival_s,
+            done_s: if matches!(end, LegEnd::Visit(_)) {
+                at.walk.t_s
+            } else {
+                arrival_s
+            },
+            payload_s: visits.get(k).and_then(|v| v.payload_s),
+        });
+    }
+    stats.complete = true;
+    let expanded = stats.labels_expanded;
+    let route = route_along(planner, &route_cells, expanded);
+    let replay = walk_plan(
+        &walker,
+        &route,
+        &holds,
+        &stops,
+        walker.start()?,
+        Attitude::default(),
+        LegEnd::Arrive,
+    );
+    let (walk, ledger, arrival_s) = match replay {
+        Ok(r) if (r.0.pack.soc - at.walk.pack.soc).abs() < 1e-9 => r,
+        other => {
+            return Err(SimError::Stage(format!(
+                "the sun-aware plan did not replay through the step arithmetic ({:?}); \
+                 please report this mission to the sunward developers",
+                other.map(|r| r.0.pack.soc)
+            ))
+            .into())
+        }
+    };
+    Ok(SunAwarePlan {
+        route,
+        holds,
+        stops,
+        legs,
+        arrival_s,
+        final_soc: walk.pack.soc,
+        min_soc: walk.min_soc,
+        ledger,
+        stats,
+    })
+}
+
+/// The cells of the start, the visits and the goal, checked: every point on the grid,
+/// not all in one cell, and no site in the goal's cell (the run ends on arrival, so its
+/// payload run would never happen).
+pub fn check_visits<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    start: &RoutePoint,
+    visits: &[Visit],
+    goal: &RoutePoint,
+) -> Result<Vec<usize>, SunAwareError> {
+    let mut cells = vec![locate(planner, start)?];
+    for v in visits {
+        cells.push(locate(planner, &v.point)?);
+    }
+    let g = locate(planner, goal)?;
+    cells.push(g);
+    if cells.iter().all(|&c| c == g) {
+        return Err(setting(
+            "goal",
+            format!("{}, {}", goal.x, goal.y),
+            "a goal in another cell than the start",
+        ));
+    }
+    if let Some(v) = visits
+        .iter()
+        .zip(&cells[1..])
+        .find(|(v, &c)| v.payload_s.is_some() && c == g)
+    {
+        return Err(setting(
+            "site",
+            format!("{} at {}, {}", v.0.point.label, v.0.point.x, v.0.point.y),
+            "a site in another cell than the goal (the run ends on arrival at the goal, \
+             before any payload run there)",
+        ));
+    }
+    Ok(cells)
+}
+
+/// Appends a hold, merged with the last one when it is at the same row.
+fn push_hold(holds: &mut Vec<Hold>, row: usize, until_s: f64) {
+    match holds.last_mut() {
+        Some(h) if h.row == row => h.until_s = h.until_s.max(until_s),
+        _ => holds.push(Hold { row, until_s }),
+    }
+}
+
+/// Where a leg starts: the cell, the energy state and the attitude the rover has there.
+#[derive(Debug, Clone, Copy)]
+struct LegStart {
+    cell: usize,
+    walk: Walk,
+    att: Attitude,
+}
+
+/// What happens at a leg's end.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum LegEnd {
+    /// The goal: the run ends (the step of the arrival closes there).
+    Arrive,
+    /// A site: the payload run of this many seconds.
+    Visit(f64),
+    /// A waypoint: the rover drives on.
+    Pass,
+}
+
+/// One leg's plan.
+#[derive(Debug, Clone)]
+struct LegPlan {
+    /// The leg's route (its first row is the leg's start).
+    route: Route,
+    /// Holds, by the leg route's rows.
+    holds: Vec<Hold>,
+    /// Arrival at the leg's end, seconds after the start.
+    arrival_s: f64,
+    /// The state after the leg's end (after the payload run at a site).
+    end: Walk,
+    stats: SearchStats,
+}
+
+/// One leg searched sun-aware: on the coarse lattice, then refined (module doc).
+fn plan_leg<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    walker: &Walker<'_, '_>,
+    from: &LegStart,
+    to: usize,
+    end: LegEnd,
+    settings: &SunAwareSettings,
+) -> Result<LegPlan, SunAwareError> {
+    // A lattice that cannot reach the leg's end at all is halved, down to the fine grid.
+    let mut b = settings.block_cells;
+    let mut coarse = loop {
+        let lat = Lattice::new(planner, b, from.cell, to);
+        match search_once(planner, lat, walker, from, end, settings, None) {
+            Err(SunAwareError::NoPlan {
+                bound: Bound::Tilt, ..
+            }) if b > 1 => b /= 2,
+            r => break r?,
+        }
+    };
+    // A halved lattice is not refined again (its search already cost the most).
     let b2 = (b / 4).max(1);
-    if !settings.refine || b2 == b {
+    if !settings.refine || b2 == b || b < settings.block_cells {
         return Ok(coarse);
     }
-    let fine_lat = Lattice::new(planner, b2, s_cell, g_cell);
+    let fine_lat = Lattice::new(planner, b2, from.cell, to);
     let mask = corridor(&fine_lat, &coarse.route, 2 * b);
     let refine_nodes = mask.iter().filter(|&&m| m).count();
-    let refined = search_once(planner, fine_lat, &walker, settings, Some(mask));
+    let refined = search_once(planner, fine_lat, walker, from, end, settings, Some(mask));
     let mut out = match refined {
         Ok(mut fine) if better(&fine, &coarse, settings.objective) => {
             fine.stats.refined = true;
@@ -358,14 +679,16 @@ pub struct SunAwareSeason {
     pub result: SeasonResult,
 }
 
-/// Plans every season sun-aware from its own start (the plan depends on the date) and
-/// replays each plan with [`crate::mission::sim::simulate`]; a season without a plan
-/// keeps the fixed route's run of `template`. In parallel, results in the seasons' order.
+/// Plans every season sun-aware from its own start (the plan depends on the date),
+/// through `visits` in their order, and replays each plan with
+/// [`crate::mission::sim::simulate`]; a season without a plan keeps the fixed route's
+/// run of `template`. In parallel, results in the seasons' order.
 pub fn run_seasons_sun_aware<M: StepModel + ?Sized>(
     planner: &Planner<'_, M>,
     template: &SimSetup<'_>,
     seasons: &[Season],
     start: &RoutePoint,
+    visits: &[Visit],
     goal: &RoutePoint,
     settings: &SunAwareSettings,
 ) -> Result<Vec<SunAwareSeason>, SimError> {
@@ -374,7 +697,7 @@ pub fn run_seasons_sun_aware<M: StepModel + ?Sized>(
         .par_iter()
         .map(|season| {
             let t0 = season_start(season.date, template.utc_offset_s, template.start_local_h);
-            let plan = plan_sun_aware(planner, template, start, goal, t0, settings);
+            let plan = plan_sun_aware_via(planner, template, start, visits, goal, t0, settings);
             let result = match &plan {
                 Ok(p) => season_result(&p.replay_setup(template), season, t0)?,
                 Err(_) => season_result(template, season, t0)?,
@@ -408,28 +731,31 @@ fn season_result(
     })
 }
 
-/// One search on `lat` (only the `allowed` nodes, when given).
+/// One search on `lat` (only the `allowed` nodes, when given) for a leg from `from`.
 fn search_once<M: StepModel + ?Sized>(
     planner: &Planner<'_, M>,
     lat: Lattice,
     walker: &Walker<'_, '_>,
+    from: &LegStart,
+    end: LegEnd,
     settings: &SunAwareSettings,
     allowed: Option<Vec<bool>>,
-) -> Result<SunAwarePlan, SunAwareError> {
+) -> Result<LegPlan, SunAwareError> {
     let mut search = Search::new(planner, lat, walker, settings);
     search.allowed = allowed;
+    search.start_att = from.att;
+    search.end = end;
     search.reachable()?;
-    let found = search.run(walker.start()?)?;
-    search.finish(found)
+    let found = search.run(from.walk)?;
+    search.finish(found, from)
 }
 
-/// Whether plan `a` beats plan `b` on the objective.
-fn better(a: &SunAwarePlan, b: &SunAwarePlan, objective: SunAwareObjective) -> bool {
+/// Whether leg plan `a` beats leg plan `b` on the objective.
+fn better(a: &LegPlan, b: &LegPlan, objective: SunAwareObjective) -> bool {
+    let (sa, sb) = (a.end.pack.soc, b.end.pack.soc);
     match objective {
-        SunAwareObjective::EarliestArrival => {
-            (a.arrival_s, -a.final_soc) < (b.arrival_s, -b.final_soc)
-        }
-        SunAwareObjective::MostCharge => (a.final_soc, -a.arrival_s) > (b.final_soc, -b.arrival_s),
+        SunAwareObjective::EarliestArrival => (a.arrival_s, -sa) < (b.arrival_s, -sb),
+        SunAwareObjective::MostCharge => (sa, -a.arrival_s) > (sb, -b.arrival_s),
     }
 }
 
@@ -626,6 +952,10 @@ struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
     wait_cache: std::collections::HashMap<(u32, u32, u32), std::rc::Rc<[f64]>>,
     /// The nodes the search may use (None: all).
     allowed: Option<Vec<bool>>,
+    /// The attitude the rover has at the leg's start (for waits there).
+    start_att: Attitude,
+    /// What happens at the leg's end.
+    end: LegEnd,
     stats: SearchStats,
 }
 
@@ -664,6 +994,8 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             heap: BinaryHeap::new(),
             wait_cache: Default::default(),
             allowed: None,
+            start_att: Attitude::default(),
+            end: LegEnd::Arrive,
             stats: SearchStats {
                 nodes: lat.nodes(),
                 label_bytes: std::mem::size_of::<Label>(),
@@ -764,12 +1096,18 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             Bound::Tilt,
             format!(
                 "the goal cannot be reached on the {}-cell lattice at any time: edges are \
-                 closed by {}; try a smaller block (--block-cells) or check the tilt limits",
+                 closed by {}; {}",
                 self.lat.b,
                 if list.is_empty() {
                     "the grid's edge".to_string()
                 } else {
                     list.join(", ")
+                },
+                if self.lat.b == 1 {
+                    "the fine grid's 8 neighbours have no way there either: check the tilt \
+                     limits, the keep-out and no-data cells, or move the point"
+                } else {
+                    "try a smaller block (block_cells) or check the tilt limits"
                 }
             ),
         ))
@@ -777,6 +1115,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
 
     fn no_plan(&self, bound: Bound, detail: String) -> SunAwareError {
         SunAwareError::NoPlan {
+            leg: None,
             bound,
             detail,
             stats: Box::new(self.stats.clone()),
@@ -787,8 +1126,8 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
     fn arrival_pose(&self, l: &Label) -> Pose {
         let cell = self.lat.cell(l.node as usize);
         let att = match self.edges.get(l.in_edge as usize) {
-            Some(Some(Ok(steps))) => steps.last().map_or(Attitude::default(), |f| f.pose.att),
-            _ => Attitude::default(),
+            Some(Some(Ok(steps))) => steps.last().map_or(self.start_att, |f| f.pose.att),
+            _ => self.start_att,
         };
         Pose {
             col: cell % self.lat.w,
@@ -958,12 +1297,19 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                     row: g / self.lat.w,
                     att: last_att,
                 };
-                let mut arrived = w;
-                res = self.walker.arrive(&mut arrived, &pose, None);
-                // The label keeps the arrival time (before the closing step) and the
-                // state after it.
-                arrived.t_s = w.t_s;
-                w = arrived;
+                match self.end {
+                    LegEnd::Arrive => {
+                        let mut arrived = w;
+                        res = self.walker.arrive(&mut arrived, &pose, None);
+                        // The label keeps the arrival time (before the closing step)
+                        // and the state after it.
+                        arrived.t_s = w.t_s;
+                        w = arrived;
+                    }
+                    // The label is the state after the payload run, at its end.
+                    LegEnd::Visit(p) => res = self.walker.visit(&mut w, &pose, p, None),
+                    LegEnd::Pass => {}
+                }
             }
             if let Err(h) = res {
                 self.cut(h);
@@ -1054,8 +1400,8 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         )
     }
 
-    /// The plan of the chosen arrival label.
-    fn finish(mut self, found: u32) -> Result<SunAwarePlan, SunAwareError> {
+    /// The leg plan of the chosen arrival label.
+    fn finish(mut self, found: u32, from: &LegStart) -> Result<LegPlan, SunAwareError> {
         let mut chain = Vec::new();
         let mut i = found;
         while i != u32::MAX {
@@ -1081,61 +1427,82 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             }
         }
         let route = route_along(self.planner, &cells, self.stats.labels_expanded);
-        let (walk, ledger, arrival_s) = walk_plan(self.walker, &route, &holds).map_err(|h| {
+        let replay = walk_plan(
+            self.walker,
+            &route,
+            &holds,
+            &[],
+            from.walk,
+            from.att,
+            self.end,
+        );
+        let (end, _, arrival_s) = replay.map_err(|h| {
             SimError::Stage(format!(
                 "the sun-aware plan did not replay through the step arithmetic ({h:?}); \
                  please report this mission to the sunward developers"
             ))
         })?;
         let stats = std::mem::take(&mut self.stats);
-        Ok(SunAwarePlan {
+        Ok(LegPlan {
             route,
             holds,
             arrival_s,
-            final_soc: walk.pack.soc,
-            min_soc: walk.min_soc,
-            ledger,
+            end,
             stats,
         })
     }
 }
 
-/// Walks a route with holds through the step arithmetic: the final state, the ledger and
-/// the arrival time (seconds after the start).
+/// Walks a route with holds and payload stops through the step arithmetic from `w0`
+/// (the rover at the route's first row with attitude `att0`), ending as `end` says: the
+/// final state, the ledger and the arrival time at the last row (seconds after the run's
+/// start). At a row the payload runs come first, then the hold, then the drive on.
 fn walk_plan(
     walker: &Walker<'_, '_>,
     route: &Route,
     holds: &[Hold],
+    stops: &[Stop],
+    w0: Walk,
+    att0: Attitude,
+    end: LegEnd,
 ) -> Result<(Walk, Ledger, f64), Halt> {
     let p = &route.profile;
     let pose = |r: usize, a: usize| Pose {
         col: p[r].col,
         row: p[r].row,
-        att: Attitude {
-            heading_rad: p[a].heading_rad,
-            pitch_rad: p[a].pitch_rad,
-            roll_rad: p[a].roll_rad,
+        att: if a == 0 {
+            att0
+        } else {
+            Attitude {
+                heading_rad: p[a].heading_rad,
+                pitch_rad: p[a].pitch_rad,
+                roll_rad: p[a].roll_rad,
+            }
         },
     };
-    let mut w = walker.start().map_err(|_| Halt::Reserve)?;
+    let mut w = w0;
     let mut ledger = Ledger::default();
     let mut next_hold = holds.iter().peekable();
-    for (i, row) in p.iter().enumerate().skip(1) {
-        if let Some(h) = next_hold.next_if(|h| h.row == i - 1) {
-            walker.hold(
-                &mut w,
-                &pose(i - 1, i - 1),
-                h.until_s,
-                Some(&mut ledger),
-                None,
-            )?;
+    let mut next_stop = stops.iter().peekable();
+    for i in 0..p.len() {
+        while let Some(s) = next_stop.next_if(|s| s.row == i) {
+            walker.visit(&mut w, &pose(i, i), s.duration_s, Some(&mut ledger))?;
         }
-        let (e, t) = (row.step_energy_j, row.step_time_s);
-        walker.drive(&mut w, &pose(i - 1, i), e, t, Some(&mut ledger))?;
+        while let Some(h) = next_hold.next_if(|h| h.row == i) {
+            walker.hold(&mut w, &pose(i, i), h.until_s, Some(&mut ledger), None)?;
+        }
+        if let Some(row) = p.get(i + 1) {
+            let (e, t) = (row.step_energy_j, row.step_time_s);
+            walker.drive(&mut w, &pose(i, i + 1), e, t, Some(&mut ledger))?;
+        }
     }
     let arrival = w.t_s;
     let last = p.len() - 1;
-    walker.arrive(&mut w, &pose(last, last), Some(&mut ledger))?;
+    match end {
+        LegEnd::Arrive => walker.arrive(&mut w, &pose(last, last), Some(&mut ledger))?,
+        LegEnd::Visit(s) => walker.visit(&mut w, &pose(last, last), s, Some(&mut ledger))?,
+        LegEnd::Pass => {}
+    }
     Ok((w, ledger, arrival))
 }
 

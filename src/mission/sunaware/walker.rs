@@ -15,9 +15,19 @@
 //! is closed at the goal with the last step's attitude, and the run ends there
 //! ([`crate::mission::sim::EndCondition::Arrival`]).
 //!
+//! A payload run at a site ([`Walker::visit`]) is a segment too. As in the simulation,
+//! its steps begin at the first boundary after the arrival (with the step that holds the
+//! arrival still closed as a driving step), or with the open step itself when nothing
+//! has happened in it yet (a site at the start); it lasts as many steps as the
+//! simulation's site clock needs to reach the payload time, parked with the site's
+//! clock running (loads scheduled `at_site`). The plan always holds at a site's row
+//! until the payload run ends (or later), so the simulation keeps the arrival attitude;
+//! the last step of the run is left open, like any step that ends exactly at a
+//! segment's end, and the next segment closes it with the site's clock still running.
+//!
 //! Each closed step then runs the simulation's own phases in the same order with the
 //! same models: panels (shared [`crate::mission::sim::poa_on`]), hotel, named loads
-//! (no payload stops: the sun-aware search has none), thermal node, heater, pack.
+//! (with the site's clock during a payload run), thermal node, heater, pack.
 //!
 //! # Units
 //! Seconds, watts, joules (drive), watt-hours (ledger).
@@ -147,6 +157,8 @@ pub(crate) struct Walk {
     last_loss_w: f64,
     /// Lowest state of charge at a step end so far.
     pub min_soc: f64,
+    /// The site's clock in the open step when it is the last step of a payload run, s.
+    site_s: Option<f64>,
 }
 
 /// Why a walk cannot go on.
@@ -188,6 +200,7 @@ impl Walker<'_, '_> {
             },
             last_loss_w: 0.0,
             min_soc: s.initial_soc,
+            site_s: None,
         })
     }
 
@@ -252,6 +265,50 @@ impl Walker<'_, '_> {
         Ok(())
     }
 
+    /// A payload run of `payload_s` at `pose` (the site's cell, the attitude the rover
+    /// arrived with), from the walk's time (module doc: which steps it takes). Leaves
+    /// the walk at the run's end with its last step open.
+    pub(crate) fn visit(
+        &self,
+        w: &mut Walk,
+        pose: &Pose,
+        payload_s: f64,
+        mut ledger: Option<&mut Ledger>,
+    ) -> Result<(), Halt> {
+        let dt = self.clock.dt;
+        // Index of the first step of the run.
+        let open = w.next_j as usize - 1;
+        let first = if w.t_s <= open as f64 * dt && w.site_s.is_none() {
+            open
+        } else {
+            open + 1
+        };
+        // Its length in steps, counted as the simulation's site clock counts.
+        let (mut n, mut done) = (0usize, 0.0);
+        loop {
+            done += dt;
+            n += 1;
+            if done >= payload_s {
+                break;
+            }
+        }
+        if first + n > self.clock.steps.len() {
+            return Err(Halt::Horizon);
+        }
+        if first > open {
+            self.close(w, pose, ledger.as_deref_mut())?;
+        }
+        let mut site = 0.0;
+        for _ in 1..n {
+            w.site_s = Some(site);
+            self.close(w, pose, ledger.as_deref_mut())?;
+            site += dt;
+        }
+        w.site_s = Some(site);
+        w.t_s = f64::from(w.next_j) * dt;
+        Ok(())
+    }
+
     /// Panel output at `pose` in step `k`, W (zero past the horizon).
     pub(crate) fn panel_w(&self, pose: &Pose, k: usize) -> f64 {
         let s = self.setup;
@@ -300,7 +357,9 @@ impl Walker<'_, '_> {
         let dt = self.clock.dt;
         let k = w.next_j as usize - 1;
         let x = self.clock.steps.get(k).ok_or(Halt::Horizon)?;
-        let activity = if w.drove {
+        let activity = if w.site_s.is_some() {
+            Activity::Parked
+        } else if w.drove {
             Activity::Driving
         } else if !x.in_hours && s.policy.sleep_outside_hours {
             Activity::Asleep
@@ -317,7 +376,7 @@ impl Walker<'_, '_> {
             local_time_s: x.local_s,
             activity,
             daylight: x.daylight,
-            site_elapsed_s: None,
+            site_elapsed_s: w.site_s,
             elapsed_s: k as f64 * dt,
         });
         let drive_w = w.drive_j / dt;
@@ -368,6 +427,7 @@ impl Walker<'_, '_> {
         w.next_j += 1;
         w.drive_j = 0.0;
         w.drove = false;
+        w.site_s = None;
         if ps.shortfall_w > SHORTFALL_TOLERANCE * demand_w.max(1.0)
             || ps.state.soc < self.reserve_soc
         {
