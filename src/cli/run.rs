@@ -58,6 +58,19 @@ pub struct RunArgs {
     /// payload runs); the fixed route's verdicts are printed beside it.
     #[arg(long, value_enum, default_value_t = PlannerKind::Fixed)]
     planner: PlannerKind,
+    /// With --planner sun-aware: `arrival` for the earliest arrival that keeps the
+    /// reserve, `charge` for the most charge at the goal (a longer search).
+    #[arg(long, value_enum, default_value_t = SunAwareGoal::Arrival)]
+    sun_aware_objective: SunAwareGoal,
+}
+
+/// What the sun-aware search optimises.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum SunAwareGoal {
+    /// Earliest arrival.
+    Arrival,
+    /// Most charge at the goal.
+    Charge,
 }
 
 /// Which planner `run` uses.
@@ -152,6 +165,7 @@ pub fn run_mission(
         fail_on_infeasible: false,
         quiet,
         planner: PlannerKind::Fixed,
+        sun_aware_objective: SunAwareGoal::Arrival,
         monte_carlo: None,
         seed: DEFAULT_SEED,
     })
@@ -229,7 +243,7 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let (results, cmp) = match a.planner {
         PlannerKind::Fixed => (results, None),
         PlannerKind::SunAware => {
-            let (r, c) = sun_aware(&a.out, &m, &planner, &setup, &seasons, &visits, results)?;
+            let (r, c) = sun_aware(a, &m, &planner, &setup, &seasons, &visits, results)?;
             (r, Some(c))
         }
     };
@@ -296,7 +310,7 @@ struct Comparison {
 /// prints the fixed route's verdicts beside the sun-aware ones; returns the sun-aware
 /// results (a season without a plan keeps the fixed route's) and the comparison.
 fn sun_aware(
-    out: &Path,
+    a: &RunArgs,
     m: &Mission,
     planner: &Planner<'_, RoverStepModel<'_>>,
     setup: &sunward::mission::sim::SimSetup<'_>,
@@ -304,9 +318,16 @@ fn sun_aware(
     visits: &[sunward::mission::sunaware::Visit],
     fixed: Vec<SeasonResult>,
 ) -> Result<(Vec<SeasonResult>, Comparison), Error> {
-    use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareSettings};
+    let out = a.out.as_path();
+    use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareObjective, SunAwareSettings};
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
-    let settings = SunAwareSettings::default();
+    let settings = SunAwareSettings {
+        objective: match a.sun_aware_objective {
+            SunAwareGoal::Arrival => SunAwareObjective::EarliestArrival,
+            SunAwareGoal::Charge => SunAwareObjective::MostCharge,
+        },
+        ..SunAwareSettings::default()
+    };
     let planned = run_seasons_sun_aware(planner, setup, seasons, start, visits, goal, &settings)
         .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
     crate::say!(
