@@ -5,7 +5,11 @@
 //! (±1, ±2), (±2, ±1), for smoother headings). A diagonal or knight step needs the cells
 //! it brushes past (its flanking cells) free of no-data, keep-out and roughness blocks, so
 //! a route never cuts the corner of a forbidden area. Per-cell state is flat arrays: the
-//! best cost so far (f64) and one byte holding the parent direction and the closed flag.
+//! best cost so far (f64) and one byte holding the parent direction. The cost word also
+//! carries the rest of the state, so the hot loop reads one array besides the elevations:
+//! reduced costs are never negative, so a set sign bit marks a closed cell (its cost is
+//! stored negated, −0 for a zero cost), and a cell blocked beforehand ([`CellFlags`]) is
+//! stored as −∞ (closed before the search starts, and recognisable as a flank).
 //! Nothing is hashed and nothing is allocated per cell.
 //!
 //! # Exactness
@@ -178,8 +182,19 @@ pub struct Workspace {
     heap: RadixHeap,
 }
 
-const CLOSED: u8 = 0x80;
 const NO_PARENT: u8 = 0x1f;
+
+/// Closed, or blocked beforehand (see the module doc).
+#[inline]
+fn is_closed(g: f64) -> bool {
+    g.is_sign_negative()
+}
+
+/// Blocked beforehand (see the module doc).
+#[inline]
+fn is_static_block(g: f64) -> bool {
+    g == f64::NEG_INFINITY
+}
 
 /// A found path.
 #[derive(Debug, Clone, PartialEq)]
@@ -348,6 +363,20 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
+        self.step_past(at, di, to, tan, |c| self.flags.blocked(c))
+    }
+
+    /// [`Self::step_to`] once the target is known to be free, with the flank blocks
+    /// looked up by `blocked`.
+    #[inline]
+    fn step_past(
+        &self,
+        at: At,
+        di: &DirInfo,
+        to: usize,
+        tan: &TanLimits,
+        blocked: impl Fn(usize) -> Option<Blocked>,
+    ) -> Result<Step, Blocked> {
         let mut flank = [[None; 2]; 2];
         for (p, pair) in di.flanks.iter().enumerate() {
             for (q, &(fc, fr)) in pair.iter().enumerate() {
@@ -356,7 +385,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         }
         if di.needs_free_flanks {
             for f in flank[0].iter().flatten() {
-                if let Some(b) = self.flags.blocked(*f) {
+                if let Some(b) = blocked(*f) {
                     return Err(b);
                 }
             }
@@ -418,7 +447,13 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     ) -> Result<GridPath, Unreachable> {
         let n = self.dem.len();
         ws.g.clear();
-        ws.g.resize(n, f64::INFINITY);
+        ws.g.extend(self.flags.flags.iter().map(|&f| {
+            if f == FREE {
+                f64::INFINITY
+            } else {
+                f64::NEG_INFINITY
+            }
+        }));
         ws.state.clear();
         ws.state.resize(n, NO_PARENT);
         ws.heap.clear();
@@ -457,24 +492,26 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut expanded = 0u64;
         while let Some((_, u32v)) = ws.heap.pop() {
             let u = u32v as usize;
-            if ws.state[u] & CLOSED != 0 {
+            let gu = ws.g[u];
+            if is_closed(gu) {
                 continue;
             }
-            ws.state[u] |= CLOSED;
+            ws.g[u] = -gu;
             expanded += 1;
             if u == goal {
                 return Ok(self.trace(ws, start, goal, k, expanded));
             }
-            let gu = ws.g[u];
             let at = self.at(u);
             for (dir, di) in table.iter().enumerate() {
                 let Some(v) = self.offset(at, di.dc, di.dr, di.delta) else {
                     continue;
                 };
-                if ws.state[v] & CLOSED != 0 {
+                if is_closed(ws.g[v]) {
                     continue;
                 }
-                let Ok(step) = self.step_to(at, di, v, &tan) else {
+                let g = &ws.g;
+                let flank_block = |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
+                let Ok(step) = self.step_past(at, di, v, &tan, flank_block) else {
                     continue;
                 };
                 let Ok(e) = self.model.step(&step) else {
@@ -506,7 +543,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         cells.reverse();
         GridPath {
             cells,
-            cost: ws.g[goal] + k * (self.z(goal) - self.z(start)),
+            cost: ws.g[goal].abs() + k * (self.z(goal) - self.z(start)),
             expanded,
         }
     }
@@ -519,7 +556,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut reached = 0;
         let table = dir_table(self.dem);
         let tan = TanLimits::of(&self.limits);
-        for u in (0..self.dem.len()).filter(|&u| ws.state[u] & CLOSED != 0) {
+        for u in (0..self.dem.len()).filter(|&u| is_closed(ws.g[u]) && !is_static_block(ws.g[u])) {
             reached += 1;
             let d = self.distance_m(u, goal);
             if d < nearest.1 {
@@ -529,7 +566,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             for di in &table[..self.connectivity.count()] {
                 let why = match self.step_geometry(at, di, &tan) {
                     Err(b) => b,
-                    Ok(step) if ws.state[step.to] & CLOSED == 0 => match self.model.step(&step) {
+                    Ok(step) if !is_closed(ws.g[step.to]) => match self.model.step(&step) {
                         Err(b) => b,
                         Ok(_) => continue,
                     },
