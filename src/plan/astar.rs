@@ -237,6 +237,8 @@ struct DirInfo {
     flank_inv_sep: [f64; 2],
     /// Diagonal and knight steps need their flanking cells free.
     needs_free_flanks: bool,
+    /// Both flank pairs are the same cells (diagonal and knight steps).
+    one_pair: bool,
 }
 
 fn dir_table(dem: &Dem) -> [DirInfo; 16] {
@@ -269,6 +271,7 @@ fn dir_table(dem: &Dem) -> [DirInfo; 16] {
             flank_delta,
             flank_inv_sep,
             needs_free_flanks: dc.abs() + dr.abs() > 1,
+            one_pair: flanks[0] == flanks[1],
         }
     })
 }
@@ -341,7 +344,19 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// Row-major index of (col + dc, row + dr), or None outside the grid.
     #[inline]
     fn offset(&self, at: At, dc: i64, dr: i64, delta: isize) -> Option<usize> {
-        if at.interior {
+        self.offset_in::<false>(at, dc, dr, delta)
+    }
+
+    /// [`Self::offset`]; `INTERIOR` promises `at.interior` (no bounds checks compiled in).
+    #[inline]
+    fn offset_in<const INTERIOR: bool>(
+        &self,
+        at: At,
+        dc: i64,
+        dr: i64,
+        delta: isize,
+    ) -> Option<usize> {
+        if INTERIOR || at.interior {
             return Some((at.cell as isize + delta) as usize);
         }
         let (c, r) = (at.col + dc, at.row + dr);
@@ -363,13 +378,13 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
-        self.step_past(at, di, to, tan, |c| self.flags.blocked(c))
+        self.step_past::<false>(at, di, to, tan, |c| self.flags.blocked(c))
     }
 
     /// [`Self::step_to`] once the target is known to be free, with the flank blocks
     /// looked up by `blocked`.
     #[inline]
-    fn step_past(
+    fn step_past<const INTERIOR: bool>(
         &self,
         at: At,
         di: &DirInfo,
@@ -378,9 +393,11 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         blocked: impl Fn(usize) -> Option<Blocked>,
     ) -> Result<Step, Blocked> {
         let mut flank = [[None; 2]; 2];
-        for (p, pair) in di.flanks.iter().enumerate() {
-            for (q, &(fc, fr)) in pair.iter().enumerate() {
-                flank[p][q] = self.offset(at, fc as i64, fr as i64, di.flank_delta[p][q]);
+        let pairs = if di.one_pair { 1 } else { 2 };
+        let pairs_in = flank.iter_mut().zip(&di.flanks).zip(&di.flank_delta);
+        for ((out, pair), deltas) in pairs_in.take(pairs) {
+            for ((o, &(fc, fr)), &d) in out.iter_mut().zip(pair).zip(deltas) {
+                *o = self.offset_in::<INTERIOR>(at, fc as i64, fr as i64, d);
             }
         }
         if di.needs_free_flanks {
@@ -416,7 +433,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     /// Cross slope t = (z_right − z_left) / separation across the heading, averaged over
-    /// the flank pairs with data (0 when none has data).
+    /// the flank pairs with data (0 when none has data). A step whose two pairs are the
+    /// same cells (`flank[1]` left empty) averages one pair: the same value exactly.
     #[inline]
     fn cross_slope(&self, flank: &[[Option<usize>; 2]; 2], inv_sep: &[f64; 2]) -> f64 {
         let (mut sum, mut n) = (0.0, 0);
@@ -431,10 +449,11 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             sum += (zr - zl) * inv;
             n += 1;
         }
-        if n == 0 {
-            0.0
-        } else {
-            sum / n as f64
+        // n ≤ 2: halving is exact, so this is sum / n bit for bit.
+        match n {
+            0 => 0.0,
+            1 => sum,
+            _ => sum * 0.5,
         }
     }
 
@@ -502,30 +521,43 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 return Ok(self.trace(ws, start, goal, k, expanded));
             }
             let at = self.at(u);
-            for (dir, di) in table.iter().enumerate() {
-                let Some(v) = self.offset(at, di.dc, di.dr, di.delta) else {
-                    continue;
+            // The loop twice over: with and without bounds checks.
+            macro_rules! relax {
+                ($interior:literal) => {
+                    for (dir, di) in table.iter().enumerate() {
+                        let Some(v) = self.offset_in::<$interior>(at, di.dc, di.dr, di.delta)
+                        else {
+                            continue;
+                        };
+                        if is_closed(ws.g[v]) {
+                            continue;
+                        }
+                        let g = &ws.g;
+                        let flank_block =
+                            |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
+                        let Ok(step) = self.step_past::<$interior>(at, di, v, &tan, flank_block)
+                        else {
+                            continue;
+                        };
+                        let Ok(e) = self.model.step(&step) else {
+                            continue;
+                        };
+                        let len = if per_m { step.length_m() } else { 0.0 };
+                        let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
+                        let gv = gu + reduced;
+                        if gv < ws.g[v] {
+                            ws.g[v] = gv;
+                            ws.state[v] = dir as u8;
+                            ws.heap
+                                .push(gv + heuristic(v, at.col + di.dc, at.row + di.dr), v as u32);
+                        }
+                    }
                 };
-                if is_closed(ws.g[v]) {
-                    continue;
-                }
-                let g = &ws.g;
-                let flank_block = |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
-                let Ok(step) = self.step_past(at, di, v, &tan, flank_block) else {
-                    continue;
-                };
-                let Ok(e) = self.model.step(&step) else {
-                    continue;
-                };
-                let len = if per_m { step.length_m() } else { 0.0 };
-                let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
-                let gv = gu + reduced;
-                if gv < ws.g[v] {
-                    ws.g[v] = gv;
-                    ws.state[v] = dir as u8;
-                    ws.heap
-                        .push(gv + heuristic(v, at.col + di.dc, at.row + di.dr), v as u32);
-                }
+            }
+            if at.interior {
+                relax!(true);
+            } else {
+                relax!(false);
             }
         }
         Err(self.explain(ws, goal))

@@ -23,15 +23,21 @@
 //! An entry is three 32-bit words (key high, key low, value), 12 bytes instead of the 16
 //! a `(u64, u32)` pair takes with its padding.
 
-/// Number of buckets: "equal to last" plus 16 levels of 16 digits.
-const BUCKETS: usize = 1 + 16 * 16;
+/// Bits per digit.
+const DIGIT_BITS: u32 = 4;
+/// Digits in a 64-bit key.
+const LEVELS: usize = 64usize.div_ceil(DIGIT_BITS as usize);
+/// Number of buckets: "equal to last" plus one per (level, digit value).
+const BUCKETS: usize = 1 + (LEVELS << DIGIT_BITS);
+/// Words of the occupancy mask.
+const MASK_WORDS: usize = (BUCKETS - 1).div_ceil(64);
 
 /// Radix heap of (key, value) with monotone keys.
 #[derive(Debug, Clone)]
 pub struct RadixHeap {
     buckets: Vec<Vec<Entry>>,
     /// Bit i − 1 set ⇔ bucket i (≥ 1) is non-empty.
-    occupied: [u64; 4],
+    occupied: [u64; MASK_WORDS],
     last: u64,
     len: usize,
 }
@@ -62,9 +68,9 @@ fn bucket_of(key: u64, last: u64) -> usize {
     if x == 0 {
         return 0;
     }
-    let level = (63 - x.leading_zeros()) / 4;
-    let digit = (key >> (4 * level)) & 15;
-    1 + 16 * level as usize + digit as usize
+    let level = (63 - x.leading_zeros()) / DIGIT_BITS;
+    let digit = (key >> (DIGIT_BITS * level)) & ((1 << DIGIT_BITS) - 1);
+    1 + ((level as usize) << DIGIT_BITS) + digit as usize
 }
 
 impl RadixHeap {
@@ -72,7 +78,7 @@ impl RadixHeap {
     pub fn new() -> RadixHeap {
         RadixHeap {
             buckets: (0..BUCKETS).map(|_| Vec::new()).collect(),
-            occupied: [0; 4],
+            occupied: [0; MASK_WORDS],
             last: 0,
             len: 0,
         }
@@ -137,7 +143,7 @@ impl RadixHeap {
         for b in &mut self.buckets {
             b.clear();
         }
-        self.occupied = [0; 4];
+        self.occupied = [0; MASK_WORDS];
         self.last = 0;
         self.len = 0;
     }
