@@ -153,31 +153,43 @@ impl RadixHeap {
 mod tests {
     use super::*;
 
-    /// Against std's BinaryHeap on a monotone random sequence of pushes and pops.
+    /// Against std's BinaryHeap on a monotone random sequence of pushes and pops: keys
+    /// spread widely from zero, and keys packed close together far from zero (as the
+    /// planner's are: they then differ only in low mantissa digits, every level used).
     #[test]
     fn pops_in_key_order_like_a_binary_heap() {
-        let mut rng = crate::terrain::synth::SplitMix64::new(5);
-        let mut radix = RadixHeap::new();
-        let mut reference = std::collections::BinaryHeap::new();
-        let mut floor = 0.0f64;
-        for i in 0..20_000u32 {
-            let pushes = (rng.next_u64() % 3) as u32;
-            for j in 0..pushes {
-                let key = floor + rng.next_f64() * 10.0;
-                radix.push(key, i * 4 + j);
-                reference.push(std::cmp::Reverse((key.to_bits(), i * 4 + j)));
-            }
-            if rng.next_u64().is_multiple_of(2) {
-                let a = radix.pop();
-                let b = reference
-                    .pop()
-                    .map(|std::cmp::Reverse((k, _))| f64::from_bits(k));
-                assert_eq!(a.map(|x| x.0), b);
-                if let Some((k, _)) = a {
-                    floor = k;
+        for (base, spread) in [(0.0, 10.0), (7.5e5, 0.01)] {
+            let mut rng = crate::terrain::synth::SplitMix64::new(5);
+            let mut radix = RadixHeap::new();
+            let mut reference = std::collections::BinaryHeap::new();
+            let mut floor = base;
+            let mut popped = 0;
+            for i in 0..20_000u32 {
+                let pushes = (rng.next_u64() % 3) as u32;
+                for j in 0..pushes {
+                    let key = floor + rng.next_f64() * spread;
+                    radix.push(key, i * 4 + j);
+                    reference.push(std::cmp::Reverse((key.to_bits(), i * 4 + j)));
+                }
+                if rng.next_u64().is_multiple_of(2) {
+                    let a = radix.pop();
+                    let b = reference
+                        .pop()
+                        .map(|std::cmp::Reverse((k, _))| f64::from_bits(k));
+                    assert_eq!(a.map(|x| x.0), b);
+                    if let Some((k, _)) = a {
+                        floor = k;
+                        popped += 1;
+                    }
                 }
             }
+            assert_eq!(radix.len(), reference.len());
+            // Drain: the rest comes out in order too.
+            while let Some(std::cmp::Reverse((k, _))) = reference.pop() {
+                assert_eq!(radix.pop().map(|x| x.0), Some(f64::from_bits(k)));
+            }
+            assert!(radix.is_empty() && radix.pop().is_none());
+            assert!(popped > 5_000, "{popped}");
         }
-        assert_eq!(radix.len(), reference.len());
     }
 }
