@@ -5,7 +5,11 @@
 //! (±1, ±2), (±2, ±1), for smoother headings). A diagonal or knight step needs the cells
 //! it brushes past (its flanking cells) free of no-data, keep-out and roughness blocks, so
 //! a route never cuts the corner of a forbidden area. Per-cell state is flat arrays: the
-//! best cost so far (f64) and one byte holding the parent direction and the closed flag.
+//! best cost so far (f64) and one byte holding the parent direction. The cost word also
+//! carries the rest of the state, so the hot loop reads one array besides the elevations:
+//! reduced costs are never negative, so a set sign bit marks a closed cell (its cost is
+//! stored negated, −0 for a zero cost), and a cell blocked beforehand ([`CellFlags`]) is
+//! stored as −∞ (closed before the search starts, and recognisable as a flank).
 //! Nothing is hashed and nothing is allocated per cell.
 //!
 //! # Exactness
@@ -178,8 +182,19 @@ pub struct Workspace {
     heap: RadixHeap,
 }
 
-const CLOSED: u8 = 0x80;
 const NO_PARENT: u8 = 0x1f;
+
+/// Closed, or blocked beforehand (see the module doc).
+#[inline]
+fn is_closed(g: f64) -> bool {
+    g.is_sign_negative()
+}
+
+/// Blocked beforehand (see the module doc).
+#[inline]
+fn is_static_block(g: f64) -> bool {
+    g == f64::NEG_INFINITY
+}
 
 /// A found path.
 #[derive(Debug, Clone, PartialEq)]
@@ -222,6 +237,8 @@ struct DirInfo {
     flank_inv_sep: [f64; 2],
     /// Diagonal and knight steps need their flanking cells free.
     needs_free_flanks: bool,
+    /// Both flank pairs are the same cells (diagonal and knight steps).
+    one_pair: bool,
 }
 
 fn dir_table(dem: &Dem) -> [DirInfo; 16] {
@@ -254,6 +271,7 @@ fn dir_table(dem: &Dem) -> [DirInfo; 16] {
             flank_delta,
             flank_inv_sep,
             needs_free_flanks: dc.abs() + dr.abs() > 1,
+            one_pair: flanks[0] == flanks[1],
         }
     })
 }
@@ -326,7 +344,19 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// Row-major index of (col + dc, row + dr), or None outside the grid.
     #[inline]
     fn offset(&self, at: At, dc: i64, dr: i64, delta: isize) -> Option<usize> {
-        if at.interior {
+        self.offset_in::<false>(at, dc, dr, delta)
+    }
+
+    /// [`Self::offset`]; `INTERIOR` promises `at.interior` (no bounds checks compiled in).
+    #[inline]
+    fn offset_in<const INTERIOR: bool>(
+        &self,
+        at: At,
+        dc: i64,
+        dr: i64,
+        delta: isize,
+    ) -> Option<usize> {
+        if INTERIOR || at.interior {
             return Some((at.cell as isize + delta) as usize);
         }
         let (c, r) = (at.col + dc, at.row + dr);
@@ -348,15 +378,31 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         if let Some(b) = self.flags.blocked(to) {
             return Err(b);
         }
+        self.step_past::<false>(at, di, to, tan, |c| self.flags.blocked(c))
+    }
+
+    /// [`Self::step_to`] once the target is known to be free, with the flank blocks
+    /// looked up by `blocked`.
+    #[inline]
+    fn step_past<const INTERIOR: bool>(
+        &self,
+        at: At,
+        di: &DirInfo,
+        to: usize,
+        tan: &TanLimits,
+        blocked: impl Fn(usize) -> Option<Blocked>,
+    ) -> Result<Step, Blocked> {
         let mut flank = [[None; 2]; 2];
-        for (p, pair) in di.flanks.iter().enumerate() {
-            for (q, &(fc, fr)) in pair.iter().enumerate() {
-                flank[p][q] = self.offset(at, fc as i64, fr as i64, di.flank_delta[p][q]);
+        let pairs = if di.one_pair { 1 } else { 2 };
+        let pairs_in = flank.iter_mut().zip(&di.flanks).zip(&di.flank_delta);
+        for ((out, pair), deltas) in pairs_in.take(pairs) {
+            for ((o, &(fc, fr)), &d) in out.iter_mut().zip(pair).zip(deltas) {
+                *o = self.offset_in::<INTERIOR>(at, fc as i64, fr as i64, d);
             }
         }
         if di.needs_free_flanks {
             for f in flank[0].iter().flatten() {
-                if let Some(b) = self.flags.blocked(*f) {
+                if let Some(b) = blocked(*f) {
                     return Err(b);
                 }
             }
@@ -387,7 +433,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     /// Cross slope t = (z_right − z_left) / separation across the heading, averaged over
-    /// the flank pairs with data (0 when none has data).
+    /// the flank pairs with data (0 when none has data). A step whose two pairs are the
+    /// same cells (`flank[1]` left empty) averages one pair: the same value exactly.
     #[inline]
     fn cross_slope(&self, flank: &[[Option<usize>; 2]; 2], inv_sep: &[f64; 2]) -> f64 {
         let (mut sum, mut n) = (0.0, 0);
@@ -402,10 +449,11 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             sum += (zr - zl) * inv;
             n += 1;
         }
-        if n == 0 {
-            0.0
-        } else {
-            sum / n as f64
+        // n ≤ 2: halving is exact, so this is sum / n bit for bit.
+        match n {
+            0 => 0.0,
+            1 => sum,
+            _ => sum * 0.5,
         }
     }
 
@@ -418,7 +466,13 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     ) -> Result<GridPath, Unreachable> {
         let n = self.dem.len();
         ws.g.clear();
-        ws.g.resize(n, f64::INFINITY);
+        ws.g.extend(self.flags.flags.iter().map(|&f| {
+            if f == FREE {
+                f64::INFINITY
+            } else {
+                f64::NEG_INFINITY
+            }
+        }));
         ws.state.clear();
         ws.state.resize(n, NO_PARENT);
         ws.heap.clear();
@@ -457,38 +511,53 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut expanded = 0u64;
         while let Some((_, u32v)) = ws.heap.pop() {
             let u = u32v as usize;
-            if ws.state[u] & CLOSED != 0 {
+            let gu = ws.g[u];
+            if is_closed(gu) {
                 continue;
             }
-            ws.state[u] |= CLOSED;
+            ws.g[u] = -gu;
             expanded += 1;
             if u == goal {
                 return Ok(self.trace(ws, start, goal, k, expanded));
             }
-            let gu = ws.g[u];
             let at = self.at(u);
-            for (dir, di) in table.iter().enumerate() {
-                let Some(v) = self.offset(at, di.dc, di.dr, di.delta) else {
-                    continue;
+            // The loop twice over: with and without bounds checks.
+            macro_rules! relax {
+                ($interior:literal) => {
+                    for (dir, di) in table.iter().enumerate() {
+                        let Some(v) = self.offset_in::<$interior>(at, di.dc, di.dr, di.delta)
+                        else {
+                            continue;
+                        };
+                        if is_closed(ws.g[v]) {
+                            continue;
+                        }
+                        let g = &ws.g;
+                        let flank_block =
+                            |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
+                        let Ok(step) = self.step_past::<$interior>(at, di, v, &tan, flank_block)
+                        else {
+                            continue;
+                        };
+                        let Ok(e) = self.model.step(&step) else {
+                            continue;
+                        };
+                        let len = if per_m { step.length_m() } else { 0.0 };
+                        let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
+                        let gv = gu + reduced;
+                        if gv < ws.g[v] {
+                            ws.g[v] = gv;
+                            ws.state[v] = dir as u8;
+                            ws.heap
+                                .push(gv + heuristic(v, at.col + di.dc, at.row + di.dr), v as u32);
+                        }
+                    }
                 };
-                if ws.state[v] & CLOSED != 0 {
-                    continue;
-                }
-                let Ok(step) = self.step_to(at, di, v, &tan) else {
-                    continue;
-                };
-                let Ok(e) = self.model.step(&step) else {
-                    continue;
-                };
-                let len = if per_m { step.length_m() } else { 0.0 };
-                let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
-                let gv = gu + reduced;
-                if gv < ws.g[v] {
-                    ws.g[v] = gv;
-                    ws.state[v] = dir as u8;
-                    ws.heap
-                        .push(gv + heuristic(v, at.col + di.dc, at.row + di.dr), v as u32);
-                }
+            }
+            if at.interior {
+                relax!(true);
+            } else {
+                relax!(false);
             }
         }
         Err(self.explain(ws, goal))
@@ -506,7 +575,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         cells.reverse();
         GridPath {
             cells,
-            cost: ws.g[goal] + k * (self.z(goal) - self.z(start)),
+            cost: ws.g[goal].abs() + k * (self.z(goal) - self.z(start)),
             expanded,
         }
     }
@@ -519,7 +588,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut reached = 0;
         let table = dir_table(self.dem);
         let tan = TanLimits::of(&self.limits);
-        for u in (0..self.dem.len()).filter(|&u| ws.state[u] & CLOSED != 0) {
+        for u in (0..self.dem.len()).filter(|&u| is_closed(ws.g[u]) && !is_static_block(ws.g[u])) {
             reached += 1;
             let d = self.distance_m(u, goal);
             if d < nearest.1 {
@@ -529,7 +598,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             for di in &table[..self.connectivity.count()] {
                 let why = match self.step_geometry(at, di, &tan) {
                     Err(b) => b,
-                    Ok(step) if ws.state[step.to] & CLOSED == 0 => match self.model.step(&step) {
+                    Ok(step) if !is_closed(ws.g[step.to]) => match self.model.step(&step) {
                         Err(b) => b,
                         Ok(_) => continue,
                     },

@@ -177,7 +177,9 @@ impl Rover {
 }
 
 impl StepModel for RoverStepModel<'_> {
-    #[inline]
+    // The planner's hot loop calls this at two sites (with and without bounds checks);
+    // inlined at both, the result never goes through memory.
+    #[inline(always)]
     fn step(&self, step: &Step) -> Result<StepEnergy, PlanBlocked> {
         match &self.firm {
             Some(f) => f.step(step),
@@ -185,6 +187,7 @@ impl StepModel for RoverStepModel<'_> {
         }
     }
 
+    #[inline]
     fn energy_lower_bound_j(&self, d_m: f64, dz_m: f64) -> f64 {
         let r = self.rover;
         let w = r.weight_n() * (r.rolling_resistance * d_m + dz_m);
@@ -196,6 +199,7 @@ impl StepModel for RoverStepModel<'_> {
         drive + r.hotel_power_w * (d_m * d_m + dz_m * dz_m).sqrt() / r.max_speed_m_s
     }
 
+    #[inline]
     fn time_lower_bound_s(&self, d_m: f64, dz_m: f64) -> f64 {
         (d_m * d_m + dz_m * dz_m).sqrt() / self.rover.max_speed_m_s
     }
