@@ -20,16 +20,17 @@
 
 /// Default memory budget: 8192 MiB (8 GiB). Common practice for a laptop-class machine
 /// of the 2020s; it admits the route planner on the default maximum of 2^28 cells
-/// (4 GiB at [`PLANNER_BYTES_PER_CELL`]) and horizon maps of 32 sectors on 7000 × 7000
+/// (6 GiB at [`PLANNER_BYTES_PER_CELL`]) and horizon maps of 32 sectors on 7000 × 7000
 /// cells. Raise it on bigger machines.
 pub const DEFAULT_MAX_MEMORY_MB: u64 = 8192;
 
 /// Bytes per cell the route planner holds while it searches: the elevation grid (4, f32),
-/// the cell flags (1, u8), the cost-so-far array (8, f64), the parent and closed state
-/// (1, u8) and the radix heap's entries. The whole `route` process was measured at 14.6
-/// bytes per cell at peak on a 4096 × 4096 corner-to-corner search (README, Speed);
-/// rounded up.
-pub const PLANNER_BYTES_PER_CELL: u64 = 16;
+/// the cell flags (1, u8), and either the one-way search's cost-so-far array (8, f64)
+/// and parent byte (1) or, on large grids, the two cost arrays of the bidirectional
+/// search (16, [`crate::plan::bidir`]), plus the queues' entries. The whole `route`
+/// process was measured at 22.5 bytes per cell at peak on a 4096 × 4096
+/// corner-to-corner search (README, Speed); rounded up.
+pub const PLANNER_BYTES_PER_CELL: u64 = 24;
 
 /// Bytes of the horizon maps: one f32 angle per cell and sector.
 pub fn horizon_bytes(cells: u64, sectors: u64) -> u64 {
@@ -126,7 +127,7 @@ mod tests {
     #[test]
     fn estimates_saturate_instead_of_wrapping() {
         assert_eq!(horizon_bytes(u64::MAX, 32), u64::MAX);
-        assert_eq!(planner_bytes(1 << 28), 4 << 30);
+        assert_eq!(planner_bytes(1 << 28), 6 << 30);
         assert_eq!(horizon_bytes(100, 32), 12_800);
         assert_eq!(time_series_bytes(10, 4, 100), 4000 + 2560);
         assert_eq!(time_series_bytes(u64::MAX, 4, 100), u64::MAX);

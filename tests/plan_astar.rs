@@ -161,6 +161,43 @@ fn bellman_ford(graph: &[Vec<(usize, f64, f64)>], start: usize) -> Vec<f64> {
     dist
 }
 
+/// The optimal cost from `start` to `goal` by `pathfinding`'s Dijkstra (a general-purpose
+/// reference library) on the explicit graph with Johnson's reweighting (non-negative
+/// costs), mapped back to the true cost.
+fn reference_cost<M: StepModel>(
+    p: &Planner<'_, M>,
+    graph: &[Vec<(usize, f64, f64)>],
+    start: usize,
+    goal: usize,
+) -> Option<f64> {
+    let k = p.objective.potential_per_m(p.model);
+    let z = |c: usize| p.dem.data()[c] as f64;
+    pathfinding::directed::dijkstra::dijkstra(
+        &start,
+        |&u| {
+            graph[u]
+                .iter()
+                .map(move |&(v, c, dz)| (v, Cost(c - k * dz)))
+                .collect::<Vec<_>>()
+        },
+        |&u| u == goal,
+    )
+    .map(|(_, c)| c.0 + k * (z(goal) - z(start)))
+}
+
+/// The true cost of walking `cells` on the explicit graph (∞ if a step is missing).
+fn walked_cost(graph: &[Vec<(usize, f64, f64)>], cells: &[usize]) -> f64 {
+    cells
+        .windows(2)
+        .map(|p| {
+            graph[p[0]]
+                .iter()
+                .find(|e| e.0 == p[1])
+                .map_or(f64::INFINITY, |e| e.1)
+        })
+        .sum()
+}
+
 fn rel_close(a: f64, b: f64) -> bool {
     (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1e-12)
 }
@@ -211,24 +248,26 @@ fn astar_equals_reference_dijkstra_on_random_grids() {
                 };
                 let graph = explicit_graph(&p);
                 negative_edges_seen |= graph.iter().flatten().any(|e| e.1 < 0.0);
-                let k = objective.potential_per_m(&model);
                 let (start, goal) = (0, dem.len() - 1);
                 if flags.blocked(start).is_some() || flags.blocked(goal).is_some() {
                     continue;
                 }
-                let reference = pathfinding::directed::dijkstra::dijkstra(
-                    &start,
-                    |&u| {
-                        graph[u]
-                            .iter()
-                            .map(move |&(v, c, dz)| (v, Cost(c - k * dz)))
-                            .collect::<Vec<_>>()
-                    },
-                    |&u| u == goal,
-                )
-                .map(|(_, c)| c.0 + k * (dem.get(w - 1, h - 1) as f64 - dem.get(0, 0) as f64));
+                let reference = reference_cost(&p, &graph, start, goal);
                 let bf = bellman_ford(&graph, start)[goal];
                 let ours = p.search(start, goal, &mut Workspace::default());
+                let both = p.search_bidirectional(start, goal, &mut Workspace::default());
+                match (&reference, &both) {
+                    (Some(r), Ok(path)) => {
+                        assert!(
+                            rel_close(*r, path.cost),
+                            "case {case} {objective:?} rho {rho}: ref {r} bidirectional {}",
+                            path.cost
+                        );
+                        assert!(rel_close(*r, walked_cost(&graph, &path.cells)));
+                    }
+                    (None, Err(_)) => {}
+                    (r, o) => panic!("case {case}: reference {r:?} vs bidirectional {o:?}"),
+                }
                 match (reference, ours) {
                     (Some(r), Ok(path)) => {
                         assert!(
@@ -236,6 +275,7 @@ fn astar_equals_reference_dijkstra_on_random_grids() {
                             "case {case} {objective:?} rho {rho}: ref {r} ours {} bf {bf}",
                             path.cost
                         );
+                        assert!(rel_close(r, walked_cost(&graph, &path.cells)));
                         assert!(
                             rel_close(r, bf),
                             "reduced Dijkstra {r} vs Bellman-Ford {bf}"
@@ -256,6 +296,70 @@ fn astar_equals_reference_dijkstra_on_random_grids() {
         negative_edges_seen,
         "the regen cases never produced a negative step"
     );
+}
+
+/// The two-thread bidirectional search between random interior cells (the searches meet
+/// away from the corners, and the bounds-check-free path runs) equals the reference
+/// Dijkstra, and its route walks at that cost; repeated runs give the same cells.
+#[test]
+fn bidirectional_search_equals_reference_between_random_cells() {
+    let mut rng = SplitMix64::new(31);
+    let mut compared = 0;
+    for case in 0..40 {
+        let (w, h) = (
+            20 + (rng.next_u64() % 20) as usize,
+            15 + (rng.next_u64() % 20) as usize,
+        );
+        let mut dem = random_dem(&mut rng, w, h);
+        dem.data_mut().iter_mut().for_each(|z| *z *= 0.5);
+        let flags = CellFlags::from_dem(&dem);
+        let model = rover(if case % 2 == 0 { 0.0 } else { 0.6 });
+        let lim = 30f64.to_radians();
+        let p = Planner {
+            dem: &dem,
+            flags: &flags,
+            model: &model,
+            limits: TiltLimits {
+                max_pitch_up_rad: lim,
+                max_pitch_down_rad: lim,
+                max_roll_rad: lim,
+            },
+            connectivity: if case % 3 == 0 {
+                Connectivity::Sixteen
+            } else {
+                Connectivity::Eight
+            },
+            objective: [Objective::ENERGY, Objective::TIME, Objective::DISTANCE][case % 3],
+        };
+        let graph = explicit_graph(&p);
+        let n = dem.len() as u64;
+        let (start, goal) = ((rng.next_u64() % n) as usize, (rng.next_u64() % n) as usize);
+        if start == goal || flags.blocked(start).is_some() || flags.blocked(goal).is_some() {
+            continue;
+        }
+        let reference = reference_cost(&p, &graph, start, goal);
+        let first = p.search_bidirectional(start, goal, &mut Workspace::default());
+        let again = p.search_bidirectional(start, goal, &mut Workspace::default());
+        match (reference, &first) {
+            (Some(r), Ok(path)) => {
+                assert!(
+                    rel_close(r, path.cost),
+                    "case {case}: ref {r} ours {}",
+                    path.cost
+                );
+                assert!(
+                    rel_close(r, walked_cost(&graph, &path.cells)),
+                    "case {case}"
+                );
+                assert_eq!((path.cells[0], *path.cells.last().unwrap()), (start, goal));
+                compared += 1;
+            }
+            (None, Err(_)) => {}
+            (r, o) => panic!("case {case}: reference {r:?} vs ours {o:?}"),
+        }
+        assert_eq!(first, again, "case {case}: two runs differ");
+    }
+    assert!(compared > 25, "only {compared} cases compared");
 }
 
 /// No step of a returned route breaks a tilt limit or enters a blocked cell.
@@ -288,10 +392,12 @@ fn routes_keep_every_constraint() {
         if flags.blocked(start).is_some() || flags.blocked(goal).is_some() {
             continue;
         }
-        let Ok(path) = p.search(start, goal, &mut Workspace::default()) else {
+        let Ok(one_way) = p.search(start, goal, &mut Workspace::default()) else {
             continue;
         };
-        for pair in path.cells.windows(2) {
+        let both = p.search_bidirectional(start, goal, &mut Workspace::default());
+        let both = both.expect("the bidirectional search finds the route the one-way finds");
+        for pair in one_way.cells.windows(2).chain(both.cells.windows(2)) {
             assert!(flags.blocked(pair[1]).is_none());
             let (w, a, b) = (dem.width() as i64, pair[0] as i64, pair[1] as i64);
             let (dc, dr) = (b % w - a % w, b / w - a / w);
@@ -481,19 +587,7 @@ fn vehicle_rover_keeps_the_model_contract_and_plans_exactly() {
             continue;
         }
         let graph = explicit_graph(&p);
-        let k = Objective::ENERGY.potential_per_m(&firm);
-        let zs = |c: usize| dem.data()[c] as f64;
-        let reference = pathfinding::directed::dijkstra::dijkstra(
-            &start,
-            |&u| {
-                graph[u]
-                    .iter()
-                    .map(move |&(v, c, dz)| (v, Cost(c - k * dz)))
-                    .collect::<Vec<_>>()
-            },
-            |&u| u == goal,
-        )
-        .map(|(_, c)| c.0 + k * (zs(goal) - zs(start)));
+        let reference = reference_cost(&p, &graph, start, goal);
         match (reference, p.search(start, goal, &mut Workspace::default())) {
             (Some(r), Ok(path)) => {
                 assert!(rel_close(r, path.cost), "ref {r} ours {}", path.cost);

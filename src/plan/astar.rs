@@ -118,10 +118,10 @@ impl Default for TiltLimits {
 /// Static per-cell blocks, prepared once and shared by every search on a grid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CellFlags {
-    flags: Vec<u8>,
+    pub(super) flags: Vec<u8>,
 }
 
-const FREE: u8 = 0;
+pub(super) const FREE: u8 = 0;
 
 impl CellFlags {
     /// Marks no-data cells of the DEM.
@@ -180,19 +180,20 @@ pub struct Workspace {
     g: Vec<f64>,
     state: Vec<u8>,
     heap: RadixHeap,
+    pub(super) bi: super::bidir::BiArrays,
 }
 
 const NO_PARENT: u8 = 0x1f;
 
 /// Closed, or blocked beforehand (see the module doc).
 #[inline]
-fn is_closed(g: f64) -> bool {
+pub(super) fn is_closed(g: f64) -> bool {
     g.is_sign_negative()
 }
 
 /// Blocked beforehand (see the module doc).
 #[inline]
-fn is_static_block(g: f64) -> bool {
+pub(super) fn is_static_block(g: f64) -> bool {
     g == f64::NEG_INFINITY
 }
 
@@ -221,27 +222,27 @@ pub struct Unreachable {
 
 /// Per-direction constants of a grid, computed once per search.
 #[derive(Debug, Clone, Copy)]
-struct DirInfo {
-    dc: i64,
-    dr: i64,
+pub(super) struct DirInfo {
+    pub(super) dc: i64,
+    pub(super) dr: i64,
     /// Row-major index offset of the target cell.
-    delta: isize,
+    pub(super) delta: isize,
     /// Horizontal length, metres.
-    d_m: f64,
-    heading_rad: f64,
+    pub(super) d_m: f64,
+    pub(super) heading_rad: f64,
     /// Flank pairs (left, right) as index offsets, with their separation across the
     /// heading (metres, right minus left), and the (dc, dr) offsets for edge checks.
-    flanks: [[(i32, i32); 2]; 2],
-    flank_delta: [[isize; 2]; 2],
+    pub(super) flanks: [[(i32, i32); 2]; 2],
+    pub(super) flank_delta: [[isize; 2]; 2],
     /// 1 / separation (0 where the pair has no width across the heading).
-    flank_inv_sep: [f64; 2],
+    pub(super) flank_inv_sep: [f64; 2],
     /// Diagonal and knight steps need their flanking cells free.
-    needs_free_flanks: bool,
+    pub(super) needs_free_flanks: bool,
     /// Both flank pairs are the same cells (diagonal and knight steps).
-    one_pair: bool,
+    pub(super) one_pair: bool,
 }
 
-fn dir_table(dem: &Dem) -> [DirInfo; 16] {
+pub(super) fn dir_table(dem: &Dem) -> [DirInfo; 16] {
     let cs = dem.cell_size();
     let w = dem.width() as isize;
     std::array::from_fn(|dir| {
@@ -278,14 +279,14 @@ fn dir_table(dem: &Dem) -> [DirInfo; 16] {
 
 /// Tilt limits as tangents, for comparisons without trigonometry in the hot loop.
 #[derive(Debug, Clone, Copy)]
-struct TanLimits {
+pub(super) struct TanLimits {
     up: f64,
     down: f64,
     roll_sq: f64,
 }
 
 impl TanLimits {
-    fn of(l: &TiltLimits) -> TanLimits {
+    pub(super) fn of(l: &TiltLimits) -> TanLimits {
         TanLimits {
             up: l.max_pitch_up_rad.tan(),
             down: l.max_pitch_down_rad.tan(),
@@ -297,11 +298,11 @@ impl TanLimits {
 /// The cell a search is expanding: its index, column, row and whether every cell within
 /// two steps is inside the grid (then no bounds checks are needed).
 #[derive(Debug, Clone, Copy)]
-struct At {
-    cell: usize,
-    col: i64,
-    row: i64,
-    interior: bool,
+pub(super) struct At {
+    pub(super) cell: usize,
+    pub(super) col: i64,
+    pub(super) row: i64,
+    pub(super) interior: bool,
 }
 
 impl<M: StepModel + ?Sized> Planner<'_, M> {
@@ -319,11 +320,11 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     #[inline]
-    fn z(&self, cell: usize) -> f64 {
+    pub(super) fn z(&self, cell: usize) -> f64 {
         self.dem.data()[cell] as f64
     }
 
-    fn at(&self, cell: usize) -> At {
+    pub(super) fn at(&self, cell: usize) -> At {
         let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
         let (col, row) = ((cell as i64) % w, (cell as i64) / w);
         At {
@@ -349,7 +350,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
 
     /// [`Self::offset`]; `INTERIOR` promises `at.interior` (no bounds checks compiled in).
     #[inline]
-    fn offset_in<const INTERIOR: bool>(
+    pub(super) fn offset_in<const INTERIOR: bool>(
         &self,
         at: At,
         dc: i64,
@@ -384,7 +385,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// [`Self::step_to`] once the target is known to be free, with the flank blocks
     /// looked up by `blocked`.
     #[inline]
-    fn step_past<const INTERIOR: bool>(
+    pub(super) fn step_past<const INTERIOR: bool>(
         &self,
         at: At,
         di: &DirInfo,
@@ -457,8 +458,48 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         }
     }
 
-    /// Reduced-cost A* from `start` to `goal`. `ws` is reused across calls.
+    /// The reduced cost c' = max(0, c − K·dz) of the step from `at` in direction `di` to
+    /// `to` (a free cell), or None when the step is blocked; flank blocks are looked up by
+    /// `blocked`. The one place both searches price a step, so a cost recomputed for a
+    /// trace is the same number to the bit.
+    #[inline]
+    pub(super) fn reduced<const INTERIOR: bool>(
+        &self,
+        at: At,
+        di: &DirInfo,
+        to: usize,
+        tan: &TanLimits,
+        k: f64,
+        blocked: impl Fn(usize) -> Option<Blocked>,
+    ) -> Option<f64> {
+        let step = self.step_past::<INTERIOR>(at, di, to, tan, blocked).ok()?;
+        let e = self.model.step(&step).ok()?;
+        let len = if self.objective.per_m != 0.0 {
+            step.length_m()
+        } else {
+            0.0
+        };
+        Some((self.objective.cost(len, &e) - k * step.dz_m).max(0.0))
+    }
+
+    /// Exact route from `start` to `goal`: the two-thread
+    /// [`Planner::search_bidirectional`] on grids of at least [`super::bidir::MIN_CELLS`]
+    /// cells, the one-way [`Planner::search_one_way`] below. `ws` is reused across calls.
     pub fn search(
+        &self,
+        start: usize,
+        goal: usize,
+        ws: &mut Workspace,
+    ) -> Result<GridPath, Unreachable> {
+        if self.dem.len() >= super::bidir::MIN_CELLS {
+            self.search_bidirectional(start, goal, ws)
+        } else {
+            self.search_one_way(start, goal, ws)
+        }
+    }
+
+    /// Reduced-cost A* from `start` to `goal` on one thread. `ws` is reused across calls.
+    pub fn search_one_way(
         &self,
         start: usize,
         goal: usize,
@@ -479,30 +520,10 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let table = dir_table(self.dem);
         let table = &table[..self.connectivity.count()];
         let tan = TanLimits::of(&self.limits);
-        let per_m = self.objective.per_m != 0.0;
         let k = self.objective.potential_per_m(self.model);
-        let z_goal = self.z(goal);
-        let cs = self.dem.cell_size();
         let w = self.dem.width();
-        let (gc, gr) = ((goal % w) as f64, (goal / w) as f64);
-        let octile = self.connectivity == Connectivity::Eight;
-        let diag_m = cs.dx_m.hypot(cs.dy_m);
-        let heuristic = |v: usize, col: i64, row: i64| -> f64 {
-            let (a, b) = ((col as f64 - gc).abs(), (row as f64 - gr).abs());
-            // The shortest 8-connected walk (module doc); any walk for 16 neighbours.
-            let d = if octile {
-                if a >= b {
-                    b * diag_m + (a - b) * cs.dx_m
-                } else {
-                    a * diag_m + (b - a) * cs.dy_m
-                }
-            } else {
-                (a * cs.dx_m).hypot(b * cs.dy_m)
-            };
-            let dz = z_goal - self.z(v);
-            let b = self.objective.lower_bound(self.model, d, dz);
-            (b - k * dz).max(0.0)
-        };
+        let toward = Toward::new(self, goal, false);
+        let heuristic = |v: usize, col: i64, row: i64| toward.bound(self, v, col, row);
         ws.g[start] = 0.0;
         ws.heap.push(
             heuristic(start, (start % w) as i64, (start / w) as i64),
@@ -535,15 +556,11 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                         let g = &ws.g;
                         let flank_block =
                             |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
-                        let Ok(step) = self.step_past::<$interior>(at, di, v, &tan, flank_block)
+                        let Some(reduced) =
+                            self.reduced::<$interior>(at, di, v, &tan, k, flank_block)
                         else {
                             continue;
                         };
-                        let Ok(e) = self.model.step(&step) else {
-                            continue;
-                        };
-                        let len = if per_m { step.length_m() } else { 0.0 };
-                        let reduced = (self.objective.cost(len, &e) - k * step.dz_m).max(0.0);
                         let gv = gu + reduced;
                         if gv < ws.g[v] {
                             ws.g[v] = gv;
@@ -622,6 +639,74 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             nearest,
             reached,
         }
+    }
+}
+
+/// The heuristic's lower bound of the reduced cost between a cell and a fixed end cell
+/// (module doc): toward the goal for the forward search, from the start for the backward
+/// search of [`super::bidir`] (the same bound with the rise taken the other way).
+#[derive(Debug, Clone, Copy)]
+pub(super) struct Toward {
+    col: f64,
+    row: f64,
+    z: f64,
+    /// The end is the start (rise measured from it) rather than the goal.
+    from_end: bool,
+    octile: bool,
+    dx: f64,
+    dy: f64,
+    diag: f64,
+    k: f64,
+}
+
+impl Toward {
+    pub(super) fn new<M: StepModel + ?Sized>(
+        p: &Planner<'_, M>,
+        end: usize,
+        from_end: bool,
+    ) -> Self {
+        let cs = p.dem.cell_size();
+        let w = p.dem.width();
+        Toward {
+            col: (end % w) as f64,
+            row: (end / w) as f64,
+            z: p.z(end),
+            from_end,
+            octile: p.connectivity == Connectivity::Eight,
+            dx: cs.dx_m,
+            dy: cs.dy_m,
+            diag: cs.dx_m.hypot(cs.dy_m),
+            k: p.objective.potential_per_m(p.model),
+        }
+    }
+
+    /// The bound for cell `v` at (`col`, `row`).
+    #[inline]
+    pub(super) fn bound<M: StepModel + ?Sized>(
+        &self,
+        p: &Planner<'_, M>,
+        v: usize,
+        col: i64,
+        row: i64,
+    ) -> f64 {
+        let (a, b) = ((col as f64 - self.col).abs(), (row as f64 - self.row).abs());
+        // The shortest 8-connected walk (module doc); any walk for 16 neighbours.
+        let d = if self.octile {
+            if a >= b {
+                b * self.diag + (a - b) * self.dx
+            } else {
+                a * self.diag + (b - a) * self.dy
+            }
+        } else {
+            (a * self.dx).hypot(b * self.dy)
+        };
+        let dz = if self.from_end {
+            p.z(v) - self.z
+        } else {
+            self.z - p.z(v)
+        };
+        let b = p.objective.lower_bound(p.model, d, dz);
+        (b - self.k * dz).max(0.0)
     }
 }
 

@@ -3,6 +3,7 @@
 //! The planner knows no rover: it asks a [`cost::StepModel`] what a step costs.
 
 pub mod astar;
+pub mod bidir;
 pub mod cost;
 pub mod error;
 pub mod queue;

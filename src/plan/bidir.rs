@@ -1,0 +1,465 @@
+//! Bidirectional A* on two threads, for large grids (the same graph, costs and
+//! exactness as [`super::astar`]).
+//!
+//! # Method
+//! A forward search from the start and a backward search from the goal (over the
+//! reversed steps) run at once, one per thread, each a Dijkstra search on the reduced
+//! costs of [`super::astar`] reweighted by the *averaged* potential
+//! p(v) = (h_t(v) − h_s(v)) / 2 (forward) and −p(v) (backward), where h_t is the forward
+//! search's bound toward the goal and h_s the same bound from the start (the rise taken
+//! the other way). Averaged potentials are from Ikeda et al., "A fast algorithm for
+//! finding better routes by AI search techniques", Vehicle Navigation and Information
+//! Systems Conference 1994, and the stopping rule below from Goldberg and Harrelson,
+//! "Computing the shortest path: A* search meets graph theory", SODA 2005 (both from
+//! memory).
+//!
+//! # Exactness
+//! h_s is consistent for the backward search by the argument of the [`super::astar`]
+//! module doc read backwards: for a step u → v, B(D(s, v), Δz) ≤ B(D(s, u), Δz') +
+//! B(u → v) ≤ h_s(u) + c(u, v) before the potentials, because D is a metric and B is
+//! monotone and subadditive (contracts 1 and 2 of [`super::cost`]). With h_t consistent
+//! forward, c'(u, v) − p(u) + p(v) = ½(c' + h_t(v) − h_t(u)) + ½(c' − h_s(v) + h_s(u))
+//! ≥ 0, so both searches see non-negative costs, their keys never decrease, and the
+//! radix heap serves both. Keys: forward g_f(v) + p(v), backward g_b(v) − p(v). With μ
+//! the best g_f(v) + g_b(v) over cells labelled by both, the searches stop once the two
+//! smallest queued keys sum to at least μ: every cell with forward distance below the
+//! forward top key is settled, and likewise backward, so on a path shorter than the two
+//! keys' sum there is a step u → w with u settled forward and w settled backward, whose
+//! relaxation gave w a forward label; its two labels then sum to that path's length,
+//! so μ already is at most it. (Rounding can end the search when the sums differ by a few
+//! ulps; the planner's tolerance is 1e-9 relative.)
+//!
+//! # Lock-step rounds (deterministic)
+//! The two threads never read each other's arrays while either writes: they run in
+//! rounds. In a round each side settles every queued cell with a key up to its own
+//! threshold; at a barrier each side then checks the cells it labelled in the round
+//! against the other side's labels (μ, and the meeting cell, the smallest index among
+//! equal sums); at a second barrier both read the same two reports, update μ and decide
+//! to stop, identically. The thresholds grow by a step that is rescaled each round
+//! toward a number of settled cells ([`ROUND_CELLS`]). Everything each thread does depends only on the
+//! data and on these counts, never on timing, so the route found is the same on every
+//! run and on one core or two (when several routes tie, it is one of them, not always
+//! the one the one-way search picks).
+//!
+//! # Memory and the route
+//! Two cost words per cell (8 bytes each, as in [`super::astar`]: a negative sign marks
+//! a settled cell, −∞ a cell blocked beforehand) and no parent arrays: the route is
+//! traced from the meeting cell by finding, at each cell, the neighbour whose cost plus
+//! the step's reduced cost (recomputed by the same code, [`Planner::reduced`]) equals
+//! the cell's cost to the bit. With the DEM (4 bytes) and the flags (1) that is about 21
+//! bytes per cell plus the queues. Should a trace fail (it cannot, short of a cycle of
+//! zero-cost steps, which a vehicle with rolling and hotel losses does not have), or no
+//! route exist, the one-way search runs instead and gives the route or its explanation.
+
+use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+use std::sync::{Barrier, Mutex};
+
+use crate::plan::astar::{
+    dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
+    Unreachable, Workspace, FREE,
+};
+use crate::plan::cost::{Blocked, StepModel};
+use crate::plan::queue::RadixHeap;
+
+/// Cells per side a round aims to settle at most (about 10 ms of work); a round aims at
+/// 1/64 of the grid when that is less (at least 8 cells).
+pub const ROUND_CELLS: u64 = 1 << 15;
+
+/// Grids with at least this many cells are searched both ways at once by
+/// [`Planner::search`] (below it, thread start and the second array cost more than they
+/// save).
+pub const MIN_CELLS: usize = 1 << 20;
+
+/// The arrays of a bidirectional search (kept in a [`Workspace`] for reuse).
+#[derive(Debug, Default)]
+pub struct BiArrays {
+    g: [Vec<AtomicU64>; 2],
+    heap: [RadixHeap; 2],
+}
+
+#[inline]
+fn ld(g: &[AtomicU64], i: usize) -> f64 {
+    f64::from_bits(g[i].load(Relaxed))
+}
+
+#[inline]
+fn st(g: &[AtomicU64], i: usize, v: f64) {
+    g[i].store(v.to_bits(), Relaxed)
+}
+
+/// (sum, cell) ordered by sum, then by cell.
+fn earlier(a: (f64, u32), b: (f64, u32)) -> bool {
+    a.0 < b.0 || (a.0 == b.0 && a.1 < b.1)
+}
+
+/// One direction's search state.
+struct Side<'h> {
+    heap: &'h mut RadixHeap,
+    /// The first entry above the round's threshold, held for the next round.
+    pending: Option<(f64, u32)>,
+    /// Cells labelled this round.
+    changed: Vec<u32>,
+    expanded: u64,
+    exhausted: bool,
+    theta: f64,
+    delta: f64,
+}
+
+impl Side<'_> {
+    /// The smallest queued key (+∞ when the queue is empty).
+    fn top(&self) -> f64 {
+        match self.pending {
+            Some((k, _)) if !self.exhausted => k,
+            _ => f64::INFINITY,
+        }
+    }
+}
+
+/// What a side tells the other at the end of a round.
+#[derive(Debug, Clone, Copy)]
+struct Report {
+    best: (f64, u32),
+    top: f64,
+    count: u64,
+}
+
+/// What both threads share: the planner and the constants of the search.
+struct Ctx<'p, 'a, M: StepModel + ?Sized> {
+    p: &'p Planner<'a, M>,
+    table: [DirInfo; 16],
+    dirs: usize,
+    tan: TanLimits,
+    k: f64,
+    to_goal: Toward,
+    from_start: Toward,
+    w: i64,
+    h: i64,
+    /// Cells per round aimed at.
+    round: u64,
+}
+
+impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
+    /// The forward potential p(v) (module doc).
+    #[inline]
+    fn potential(&self, v: usize, col: i64, row: i64) -> f64 {
+        0.5 * (self.to_goal.bound(self.p, v, col, row) - self.from_start.bound(self.p, v, col, row))
+    }
+
+    fn interior(&self, col: i64, row: i64) -> bool {
+        col >= 2 && row >= 2 && col + 2 < self.w && row + 2 < self.h
+    }
+
+    /// Settles the queued cells with keys up to the side's threshold (`REV`: backward).
+    fn advance<const REV: bool>(&self, g: &[AtomicU64], side: &mut Side<'_>) {
+        loop {
+            let Some((key, x)) = side.pending.take().or_else(|| side.heap.pop()) else {
+                side.exhausted = true;
+                return;
+            };
+            if key > side.theta {
+                side.pending = Some((key, x));
+                return;
+            }
+            let u = x as usize;
+            let gu = ld(g, u);
+            if is_closed(gu) {
+                continue;
+            }
+            st(g, u, -gu);
+            side.expanded += 1;
+            let at = self.p.at(u);
+            if at.interior {
+                self.relax::<REV, true>(g, side, at, gu);
+            } else {
+                self.relax::<REV, false>(g, side, at, gu);
+            }
+        }
+    }
+
+    /// Relaxes the steps out of (forward) or into (backward) the settled cell `at`.
+    /// `INTERIOR` promises `at.interior`: then every cell a step touches is in the grid.
+    #[inline]
+    fn relax<const REV: bool, const INTERIOR: bool>(
+        &self,
+        g: &[AtomicU64],
+        side: &mut Side<'_>,
+        at: At,
+        gu: f64,
+    ) {
+        let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
+        for di in &self.table[..self.dirs] {
+            let (from, to, col, row) = if REV {
+                let (col, row) = (at.col - di.dc, at.row - di.dr);
+                let inside = col >= 0 && row >= 0 && col < self.w && row < self.h;
+                if !(INTERIOR || inside) {
+                    continue;
+                }
+                let u = (at.cell as isize - di.delta) as usize;
+                let from = At {
+                    cell: u,
+                    col,
+                    row,
+                    interior: INTERIOR || self.interior(col, row),
+                };
+                (from, at.cell, col, row)
+            } else {
+                let Some(v) = self.p.offset_in::<INTERIOR>(at, di.dc, di.dr, di.delta) else {
+                    continue;
+                };
+                (at, v, at.col + di.dc, at.row + di.dr)
+            };
+            let next = if REV { from.cell } else { to };
+            if is_closed(ld(g, next)) {
+                continue;
+            }
+            let Some(c) = self
+                .p
+                .reduced::<INTERIOR>(from, di, to, &self.tan, self.k, flank_block)
+            else {
+                continue;
+            };
+            let gn = gu + c;
+            if gn < ld(g, next) {
+                st(g, next, gn);
+                let pot = self.potential(next, col, row);
+                side.heap
+                    .push(if REV { gn - pot } else { gn + pot }, next as u32);
+                side.changed.push(next as u32);
+            }
+        }
+    }
+
+    /// The best (sum, cell) over this round's labelled cells of a side.
+    fn check(&self, own: &[AtomicU64], other: &[AtomicU64], changed: &mut Vec<u32>) -> (f64, u32) {
+        let mut best = (f64::INFINITY, u32::MAX);
+        for &x in changed.iter() {
+            let (a, b) = (ld(own, x as usize), ld(other, x as usize));
+            if a.is_finite() && b.is_finite() {
+                let s = (a.abs() + b.abs(), x);
+                if earlier(s, best) {
+                    best = s;
+                }
+            }
+        }
+        changed.clear();
+        best
+    }
+
+    /// One side's rounds until the stopping rule holds; returns μ and its cell.
+    #[allow(clippy::too_many_arguments)]
+    fn rounds<const REV: bool>(
+        &self,
+        me: usize,
+        g: &[&[AtomicU64]; 2],
+        side: &mut Side<'_>,
+        barrier: &Barrier,
+        reports: &Mutex<[Report; 2]>,
+    ) -> (f64, u32) {
+        let mut mu = (f64::INFINITY, u32::MAX);
+        loop {
+            let before = side.expanded;
+            self.advance::<REV>(g[me], side);
+            barrier.wait();
+            let best = self.check(g[me], g[1 - me], &mut side.changed);
+            let report = Report {
+                best,
+                top: side.top(),
+                count: side.expanded - before,
+            };
+            reports.lock().unwrap_or_else(|e| e.into_inner())[me] = report;
+            barrier.wait();
+            let both = *reports.lock().unwrap_or_else(|e| e.into_inner());
+            for r in &both {
+                if earlier(r.best, mu) {
+                    mu = r.best;
+                }
+            }
+            if both[0].top + both[1].top >= mu.0 {
+                return mu;
+            }
+            let scale = self.round as f64 / both[me].count.max(1) as f64;
+            side.delta *= scale.clamp(0.25, 4.0);
+            side.theta = both[me].top + side.delta;
+        }
+    }
+
+    /// Traces the route from the meeting cell `m` back to the start (forward labels) or
+    /// on to the goal (backward labels); None if a cell has no matching neighbour.
+    fn trace<const REV: bool>(&self, g: &[AtomicU64], m: usize, end: usize) -> Option<Vec<usize>> {
+        let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
+        let mut cells = vec![m];
+        let mut x = m;
+        while x != end {
+            if cells.len() > g.len() {
+                return None;
+            }
+            let gx = ld(g, x).abs();
+            let at = self.p.at(x);
+            let mut next = None;
+            for di in &self.table[..self.dirs] {
+                let (from, to) = if REV {
+                    let Some(y) = self.p.offset_in::<false>(at, di.dc, di.dr, di.delta) else {
+                        continue;
+                    };
+                    (at, y)
+                } else {
+                    let (col, row) = (at.col - di.dc, at.row - di.dr);
+                    if !(col >= 0 && row >= 0 && col < self.w && row < self.h) {
+                        continue;
+                    }
+                    let u = (x as isize - di.delta) as usize;
+                    (self.p.at(u), x)
+                };
+                let y = if REV { to } else { from.cell };
+                let gy = ld(g, y);
+                if !gy.is_finite() {
+                    continue;
+                }
+                let Some(c) = self
+                    .p
+                    .reduced::<false>(from, di, to, &self.tan, self.k, flank_block)
+                else {
+                    continue;
+                };
+                if gy.abs() + c == gx {
+                    next = Some(y);
+                    break;
+                }
+            }
+            x = next?;
+            cells.push(x);
+        }
+        Some(cells)
+    }
+}
+
+/// A side whose queue holds its start `cell` with `key`.
+fn side(heap: &mut RadixHeap, key: f64, cell: usize) -> Side<'_> {
+    heap.push(key.max(0.0), cell as u32);
+    Side {
+        heap,
+        pending: None,
+        changed: vec![cell as u32],
+        expanded: 0,
+        exhausted: false,
+        theta: key,
+        delta: 0.0,
+    }
+}
+
+impl<M: StepModel + ?Sized> Planner<'_, M> {
+    /// Exact route from `start` to `goal` by the two-thread bidirectional search (module
+    /// doc); the one-way [`Planner::search`] answers instead when there is no route (for
+    /// its explanation), when start or goal is blocked, or when they are the same cell.
+    pub fn search_bidirectional(
+        &self,
+        start: usize,
+        goal: usize,
+        ws: &mut Workspace,
+    ) -> Result<GridPath, Unreachable> {
+        let free = |c: usize| self.flags.flags[c] == FREE;
+        if start == goal || !free(start) || !free(goal) {
+            return self.search_one_way(start, goal, ws);
+        }
+        match self.meet(start, goal, &mut ws.bi) {
+            Some(path) => Ok(path),
+            None => {
+                // Give the memory back before the one-way search takes its own.
+                ws.bi = BiArrays::default();
+                self.search_one_way(start, goal, ws)
+            }
+        }
+    }
+
+    fn meet(&self, start: usize, goal: usize, bi: &mut BiArrays) -> Option<GridPath> {
+        let n = self.dem.len();
+        let ctx = Ctx {
+            p: self,
+            table: dir_table(self.dem),
+            dirs: self.connectivity.count(),
+            tan: TanLimits::of(&self.limits),
+            k: self.objective.potential_per_m(self.model),
+            to_goal: Toward::new(self, goal, false),
+            from_start: Toward::new(self, start, true),
+            w: self.dem.width() as i64,
+            h: self.dem.height() as i64,
+            round: (n as u64 / 64).clamp(8, ROUND_CELLS),
+        };
+        let [gf, gb] = &mut bi.g;
+        let init = |g: &mut Vec<AtomicU64>| {
+            let cell = |f: &u8| {
+                AtomicU64::new(
+                    if *f == FREE {
+                        f64::INFINITY
+                    } else {
+                        f64::NEG_INFINITY
+                    }
+                    .to_bits(),
+                )
+            };
+            if g.len() == n {
+                for (a, f) in g.iter().zip(&self.flags.flags) {
+                    a.store(cell(f).into_inner(), Relaxed);
+                }
+            } else {
+                *g = self.flags.flags.iter().map(cell).collect();
+            }
+        };
+        std::thread::scope(|s| {
+            s.spawn(|| init(gb));
+            init(gf);
+        });
+        let g = [&bi.g[0][..], &bi.g[1][..]];
+        let w = self.dem.width();
+        let [hf, hb] = &mut bi.heap;
+        hf.clear();
+        hb.clear();
+        st(g[0], start, 0.0);
+        st(g[1], goal, 0.0);
+        let (sc, sr) = ((start % w) as i64, (start / w) as i64);
+        let (gc, gr) = ((goal % w) as i64, (goal / w) as i64);
+        let mut fwd = side(hf, ctx.potential(start, sc, sr), start);
+        let mut bwd = side(hb, -ctx.potential(goal, gc, gr), goal);
+        // The first threshold step: a flat step and a sliver of the bounds; later steps
+        // adapt to the round's size.
+        let cs = self.dem.cell_size();
+        let flat = self
+            .objective
+            .lower_bound(self.model, cs.dx_m.min(cs.dy_m), 0.0);
+        let d0 = (fwd.theta + bwd.theta) / 4096.0 + flat;
+        let d0 = if d0 > 0.0 && d0.is_finite() { d0 } else { 1.0 };
+        for s in [&mut fwd, &mut bwd] {
+            s.delta = d0;
+            s.theta += d0;
+        }
+        let barrier = Barrier::new(2);
+        let reports = Mutex::new(
+            [Report {
+                best: (f64::INFINITY, u32::MAX),
+                top: 0.0,
+                count: 0,
+            }; 2],
+        );
+        let mu = std::thread::scope(|s| {
+            let back = s.spawn(|| ctx.rounds::<true>(1, &g, &mut bwd, &barrier, &reports));
+            let mu = ctx.rounds::<false>(0, &g, &mut fwd, &barrier, &reports);
+            if let Err(e) = back.join() {
+                std::panic::resume_unwind(e);
+            }
+            mu
+        });
+        if !mu.0.is_finite() {
+            return None;
+        }
+        let m = mu.1 as usize;
+        let mut cells = ctx.trace::<false>(g[0], m, start)?;
+        cells.reverse();
+        let on = ctx.trace::<true>(g[1], m, goal)?;
+        cells.extend_from_slice(&on[1..]);
+        Some(GridPath {
+            cells,
+            cost: mu.0 + ctx.k * (self.z(goal) - self.z(start)),
+            expanded: fwd.expanded + bwd.expanded,
+        })
+    }
+}
