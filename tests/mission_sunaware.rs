@@ -720,6 +720,7 @@ fn a_later_leg_starts_from_the_whole_arrival_front() {
         plan.legs
     );
     assert!(plan.min_soc >= sv.kit.pack.params().reserve_soc);
+    assert!(plan.stats.complete);
     assert_eq!(plan.fronts.len(), 1);
     // The plan leaves the site from a front member that is not the earliest arrival.
     let front = &plan.fronts[0].members;
@@ -801,4 +802,46 @@ fn check_front<M: sunward::plan::StepModel>(
             m.soc
         );
     }
+}
+
+/// When the label budget cut an earlier leg's arrival front, a later leg without a plan
+/// is no proof: the bound named is the label budget, with the leg whose front was cut.
+/// (2000 labels: enough for a few of leg 1's arrivals, none of which carries leg 2;
+/// with the default budget the same mission has a plan, the test above.)
+#[test]
+fn a_front_cut_by_the_label_budget_is_named() {
+    let sv = survey();
+    let model = RoverStepModel::new(&sv.kit.rover);
+    let p = planner(&sv.dem, &sv.flags, &model);
+    let h = sv.dem.height();
+    let (from, site, to) = (
+        at("start", 8, 12, h),
+        at("site", 40, 40, h),
+        at("goal", 120, 40, h),
+    );
+    let visits = [Visit {
+        point: site.clone(),
+        payload_s: Some(7200.0),
+    }];
+    let fixed = plan_route(&p, &[from.clone(), site.clone(), to.clone()]).unwrap();
+    let mut t = setup(&fixed, &sv.kit, Some(&sv.horizons), policy(16.0));
+    t.initial_soc = 0.6;
+    let s = SunAwareSettings {
+        bucket_s: 1800.0,
+        max_labels: 2000,
+        ..SunAwareSettings::default()
+    };
+    let r = plan_sun_aware_via(&p, &t, &from, &visits, &to, start_time(), &s);
+    let Err(SunAwareError::NoPlan {
+        leg, bound, detail, ..
+    }) = &r
+    else {
+        panic!("expected no plan, got {r:?}");
+    };
+    assert_eq!(leg.as_deref(), Some("2 of 2, from site to goal"));
+    assert_eq!(*bound, Bound::LabelBudget);
+    assert!(
+        detail.contains("cut the arrival front of the leg 1 of 2, from start to site"),
+        "{detail}"
+    );
 }

@@ -75,8 +75,9 @@
 //! [`plan_sun_aware_via`] plans leg by leg: start → each [`Visit`] in the order given
 //! (waypoints first, then the sites in the order the fixed pipeline chooses,
 //! [`crate::mission::prepare::plan`]) → goal. Each leg is one search as above, from the
-//! previous leg's end state (time, pack, battery box, losses, the open simulation step
-//! and the attitude the rover arrived with) to the next point. At a waypoint the rover
+//! previous leg's end states (each with its time, pack, battery box, losses, open
+//! simulation step and the attitude the rover arrived with: the arrival front, below)
+//! to the next point. At a waypoint the rover
 //! drives on; at a site the leg's last move includes the payload run: the rover parks
 //! (hotel on, loads scheduled `at_site` on with the site's clock, even outside the
 //! driving hours) for as many simulation steps as the simulation's site clock needs
@@ -88,19 +89,43 @@
 //! plan is walked once more from the start through the step arithmetic (the ledger
 //! reported) and must end in the last leg's state.
 //!
-//! **Greedy across legs.** Each leg takes the best arrival *for that leg* (earliest, or
-//! most charge) and the next leg starts from it; the labels of the other arrivals are
-//! dropped. A later arrival with more charge at a site could let a later leg go faster
-//! (or at all), so the plan is not optimal over the whole route, and a leg can fail
-//! where a plan with another earlier leg exists. It is acceptable because (a) every plan
-//! found is still safe and exact (each leg carries its exact energy state, and the
-//! joined plan is replayed), so greed costs optimality, never safety; (b) with the
-//! earliest-arrival objective an earlier arrival can always wait in place until a later
-//! one's time, so a greedy leg gives up only what a better-lit place would have earned
-//! in that gap; and (c) carrying every Pareto label across legs would multiply each
-//! leg's search by the size of the previous front. A library caller whose later leg
-//! fails can plan again with [`SunAwareObjective::MostCharge`] (each leg arrives
-//! fullest); the CLI does not retry.
+//! **The arrival front, carried across legs.** A leg before the last does not keep one
+//! best arrival. Its search collects every label that reaches the leg's end (at a site,
+//! the state after the payload run) and keeps those that no other arrival of the same
+//! time bucket dominates by the rule above (no later, at most ε less charge): the leg's
+//! *arrival front*. It expands every label, as [`SunAwareObjective::MostCharge`] does,
+//! and ends when the queue is empty, or when an arrival with a full pack exists and no
+//! queued label can arrive earlier than it, or at the label budget (the front is then
+//! marked incomplete). The coarse and the refined search (whose corridor covers the
+//! routes of all the coarse front's members) give a front each; they are merged under
+//! the same rule. The next leg's search starts from every member at once: each start
+//! label carries the member's energy state, the attitude the rover arrived with (for
+//! its waits before its first drive) and an origin (which member it continues,
+//! inherited by its children); the start labels share one search, so dominance compares
+//! labels of different origins like any others. The final leg keeps the objective's
+//! best arrival over all its start labels, and its plan is traced back through the
+//! origins, leg by leg, to the start; each member's leg is replayed from the state of
+//! the member it continues and must end in the member's state. A leg's search also
+//! drops every label that could not finish the later legs before the deadline: its
+//! horizon is the deadline less a lower bound of the later legs' time (their
+//! straight-line driving time by the vehicle's bound, the one that orders the queue,
+//! and their payload runs).
+//!
+//! Why "no plan" is then a proof within the bounds: any plan on the lattice passes each
+//! leg's end in some state; that state is in the front, or a member of its time bucket
+//! is no later with at most ε less charge, or a full-pack arrival is no later; the next
+//! leg's search starts from that member too. So when a later leg has no plan from any
+//! carried start, no plan exists within the same bounds a single leg's search has: the
+//! dominance rule (ε, and what it ignores: box temperature, arrival heading, the drain
+//! while waiting from t_a to t_b; a full pack is taken to cover every later arrival),
+//! waits ending on bucket boundaries, the lattice (and the refinement's corridor), the
+//! label budget and the horizon. When the budget cut an earlier leg's front, a later
+//! "no plan" names the label budget and the leg whose front was cut.
+//!
+//! The cost: each leg before the last is searched to exhaustion (like most charge), not
+//! to its first arrival, and the next leg starts from up to a few members per bucket;
+//! but since they share one search, the next leg costs one search with many start
+//! labels, not one search per member. A single leg is searched as before.
 //!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds
 //! and stops, and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays
@@ -116,7 +141,8 @@
 //! several legs it also names the leg (`2 of 5, from waypoint 1 to lichen transect`).
 //!
 //! # Limits
-//! Greedy across legs (above); a site in the goal's cell is refused (the run ends on
+//! Exact up to the dominance rule and the lattice, across legs as within one (above);
+//! legs before the last cost a full search each; a site in the goal's cell is refused (the run ends on
 //! arrival, before any payload run there; [`check_visits`]); the lattice uses the 8 neighbours (not
 //! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
 //! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
