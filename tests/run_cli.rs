@@ -289,7 +289,7 @@ fn sun_aware_planner_runs_beside_the_fixed_route() {
 
 /// The survey mission with its waypoint and one site (the tarn shore, with a 30-minute
 /// payload run): the shape of a mission through waypoints and sites, small enough for a
-/// debug-build test (the full mission's sun-aware run takes about half a minute in a
+/// debug-build test (the full mission's sun-aware run takes several minutes in a
 /// release build).
 fn one_site_mission(dir: &std::path::Path) -> PathBuf {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));

@@ -75,8 +75,9 @@
 //! [`plan_sun_aware_via`] plans leg by leg: start → each [`Visit`] in the order given
 //! (waypoints first, then the sites in the order the fixed pipeline chooses,
 //! [`crate::mission::prepare::plan`]) → goal. Each leg is one search as above, from the
-//! previous leg's end state (time, pack, battery box, losses, the open simulation step
-//! and the attitude the rover arrived with) to the next point. At a waypoint the rover
+//! previous leg's end states (each with its time, pack, battery box, losses, open
+//! simulation step and the attitude the rover arrived with: the arrival front, below)
+//! to the next point. At a waypoint the rover
 //! drives on; at a site the leg's last move includes the payload run: the rover parks
 //! (hotel on, loads scheduled `at_site` on with the site's clock, even outside the
 //! driving hours) for as many simulation steps as the simulation's site clock needs
@@ -88,19 +89,43 @@
 //! plan is walked once more from the start through the step arithmetic (the ledger
 //! reported) and must end in the last leg's state.
 //!
-//! **Greedy across legs.** Each leg takes the best arrival *for that leg* (earliest, or
-//! most charge) and the next leg starts from it; the labels of the other arrivals are
-//! dropped. A later arrival with more charge at a site could let a later leg go faster
-//! (or at all), so the plan is not optimal over the whole route, and a leg can fail
-//! where a plan with another earlier leg exists. It is acceptable because (a) every plan
-//! found is still safe and exact (each leg carries its exact energy state, and the
-//! joined plan is replayed), so greed costs optimality, never safety; (b) with the
-//! earliest-arrival objective an earlier arrival can always wait in place until a later
-//! one's time, so a greedy leg gives up only what a better-lit place would have earned
-//! in that gap; and (c) carrying every Pareto label across legs would multiply each
-//! leg's search by the size of the previous front. A library caller whose later leg
-//! fails can plan again with [`SunAwareObjective::MostCharge`] (each leg arrives
-//! fullest); the CLI does not retry.
+//! **The arrival front, carried across legs.** A leg before the last does not keep one
+//! best arrival. Its search collects every label that reaches the leg's end (at a site,
+//! the state after the payload run) and keeps those that no other arrival of the same
+//! time bucket dominates by the rule above (no later, at most ε less charge): the leg's
+//! *arrival front*. It expands every label, as [`SunAwareObjective::MostCharge`] does,
+//! and ends when the queue is empty, or when an arrival with a full pack exists and no
+//! queued label can arrive earlier than it, or at the label budget (the front is then
+//! marked incomplete). The coarse and the refined search (whose corridor covers the
+//! routes of all the coarse front's members) give a front each; they are merged under
+//! the same rule. The next leg's search starts from every member at once: each start
+//! label carries the member's energy state, the attitude the rover arrived with (for
+//! its waits before its first drive) and an origin (which member it continues,
+//! inherited by its children); the start labels share one search, so dominance compares
+//! labels of different origins like any others. The final leg keeps the objective's
+//! best arrival over all its start labels, and its plan is traced back through the
+//! origins, leg by leg, to the start; each member's leg is replayed from the state of
+//! the member it continues and must end in the member's state. A leg's search also
+//! drops every label that could not finish the later legs before the deadline: its
+//! horizon is the deadline less a lower bound of the later legs' time (their
+//! straight-line driving time by the vehicle's bound, the one that orders the queue,
+//! and their payload runs).
+//!
+//! Why "no plan" is then a proof within the bounds: any plan on the lattice passes each
+//! leg's end in some state; that state is in the front, or a member of its time bucket
+//! is no later with at most ε less charge, or a full-pack arrival is no later; the next
+//! leg's search starts from that member too. So when a later leg has no plan from any
+//! carried start, no plan exists within the same bounds a single leg's search has: the
+//! dominance rule (ε, and what it ignores: box temperature, arrival heading, the drain
+//! while waiting from t_a to t_b; a full pack is taken to cover every later arrival),
+//! waits ending on bucket boundaries, the lattice (and the refinement's corridor), the
+//! label budget and the horizon. When the budget cut an earlier leg's front, a later
+//! "no plan" names the label budget and the leg whose front was cut.
+//!
+//! The cost: each leg before the last is searched to exhaustion (like most charge), not
+//! to its first arrival, and the next leg starts from up to a few members per bucket;
+//! but since they share one search, the next leg costs one search with many start
+//! labels, not one search per member. A single leg is searched as before.
 //!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds
 //! and stops, and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays
@@ -116,7 +141,8 @@
 //! several legs it also names the leg (`2 of 5, from waypoint 1 to lichen transect`).
 //!
 //! # Limits
-//! Greedy across legs (above); a site in the goal's cell is refused (the run ends on
+//! Exact up to the dominance rule and the lattice, across legs as within one (above);
+//! legs before the last cost a full search each; a site in the goal's cell is refused (the run ends on
 //! arrival, before any payload run there; [`check_visits`]); the lattice uses the 8 neighbours (not
 //! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
 //! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
@@ -176,6 +202,10 @@ pub struct SunAwareSettings {
     /// Search again on a lattice four times finer (at least one cell) within two
     /// blocks of the coarse plan's route, and keep the better plan.
     pub refine: bool,
+    /// Test use: each leg before the last keeps only its best arrival by the objective
+    /// (the next leg starts from that one state) instead of its arrival front.
+    #[doc(hidden)]
+    pub greedy_legs: bool,
 }
 
 impl Default for SunAwareSettings {
@@ -192,6 +222,7 @@ impl Default for SunAwareSettings {
             soc_resolution: 0.005,
             objective: SunAwareObjective::EarliestArrival,
             refine: true,
+            greedy_legs: false,
         }
     }
 }
@@ -265,6 +296,36 @@ pub struct SunAwarePlan {
     pub ledger: Ledger,
     /// Search counters.
     pub stats: SearchStats,
+    /// The arrival front of each leg but the last (the arrivals the next leg started
+    /// from), start to goal.
+    pub fronts: Vec<ArrivalFront>,
+}
+
+/// The arrivals a leg carried into the next one: no member dominates another of the
+/// same time bucket of its `done_s` (no later, at most `soc_resolution` less charge).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ArrivalFront {
+    /// The members, in the order the searches made them.
+    pub members: Vec<FrontMember>,
+}
+
+/// One arrival of a leg's front.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FrontMember {
+    /// The member of the previous leg's front it continues (0 for the first leg).
+    pub origin: usize,
+    /// Arrival at the leg's end, seconds after the start.
+    pub arrival_s: f64,
+    /// When the next leg starts from it (after the payload run at a site), seconds
+    /// after the start.
+    pub done_s: f64,
+    /// State of charge then.
+    pub soc: f64,
+    /// The fine cells of its leg's route (row-major indices; the first is the leg's
+    /// start).
+    pub cells: Vec<usize>,
+    /// Its holds, by the rows of its leg's route.
+    pub holds: Vec<Hold>,
 }
 
 impl SunAwarePlan {
@@ -404,20 +465,28 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
     let mut names = vec![start.label.as_str()];
     names.extend(visits.iter().map(|v| v.point.label.as_str()));
     names.push(goal.label.as_str());
-    let w = planner.dem.width();
-    let mut at = LegStart {
-        cell: cells[0],
+    let n = cells.len() - 1;
+    let rest = rest_lower_bounds(planner, &cells, visits);
+    let mut starts = vec![LegStart {
         walk: walker.start()?,
         att: Attitude::default(),
+    }];
+    let mut fronts: Vec<Vec<LegPlan>> = Vec::new();
+    let mut stats = SearchStats {
+        complete: true,
+        ..SearchStats::default()
     };
-    let (mut route_cells, mut holds, mut stops, mut legs) =
-        (vec![cells[0]], Vec::new(), Vec::new(), Vec::new());
-    let mut stats = SearchStats::default();
-    let n = cells.len() - 1;
+    // The first leg whose arrival front the label budget cut.
+    let mut cut: Option<usize> = None;
     for k in 0..n {
         let end = match visits.get(k) {
             None => LegEnd::Arrive,
             Some(v) => v.payload_s.map_or(LegEnd::Pass, LegEnd::Visit),
+        };
+        let want = if k + 1 == n || settings.greedy_legs {
+            Want::Best
+        } else {
+            Want::Front
         };
         let leg_name =
             (n > 1).then(|| format!("{} of {n}, from {} to {}", k + 1, names[k], names[k + 1]));
@@ -427,89 +496,146 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
                 detail,
                 stats,
                 ..
-            } => SunAwareError::NoPlan {
-                leg: leg_name.clone(),
-                bound,
-                detail,
-                stats,
-            },
+            } => {
+                let (bound, detail) = match cut {
+                    Some(j) => (
+                        Bound::LabelBudget,
+                        format!(
+                            "no plan from the {} arrivals carried into it ({detail}); but the \
+                             label budget of {} labels cut the arrival front of the leg {} \
+                             of {n}, from {} to {}, so an arrival it did not reach may still \
+                             lead to a plan: raise the budget, use larger blocks or longer \
+                             buckets",
+                            starts.len(),
+                            settings.max_labels,
+                            j + 1,
+                            names[j],
+                            names[j + 1]
+                        ),
+                    ),
+                    None => (bound, detail),
+                };
+                SunAwareError::NoPlan {
+                    leg: leg_name.clone(),
+                    bound,
+                    detail,
+                    stats,
+                }
+            }
             e => e,
         };
-        let base = route_cells.len() - 1;
-        let arrival_s = if cells[k + 1] == at.cell {
-            // A point in the cell of the one before: nothing to drive.
-            let t = at.walk.t_s;
-            let pose = Pose {
-                col: at.cell % w,
-                row: at.cell / w,
-                att: at.att,
-            };
-            let done = match end {
-                LegEnd::Visit(p) => walker.visit(&mut at.walk, &pose, p, None),
-                LegEnd::Arrive => walker.arrive(&mut at.walk, &pose, None),
-                LegEnd::Pass => Ok(()),
-            };
-            if let Err(h) = done {
-                let (bound, what) = match h {
-                    Halt::Horizon => (Bound::Horizon, "runs past the deadline"),
-                    _ => (Bound::Reserve, "runs below the reserve state of charge"),
-                };
-                return Err(name(SunAwareError::NoPlan {
-                    leg: None,
-                    bound,
-                    detail: format!(
-                        "the payload run at {} {what}; a larger battery or panels, an \
-                         earlier start or a later deadline may help",
-                        names[k + 1]
-                    ),
-                    stats: Box::new(stats),
-                }));
-            }
-            t
+        let horizon_s = clock.horizon_s() - rest[k];
+        let front = if cells[k + 1] == cells[k] {
+            in_place(
+                &walker,
+                planner.dem.width(),
+                cells[k],
+                &starts,
+                end,
+                want,
+                horizon_s,
+                settings,
+                names[k + 1],
+            )
+            .map_err(|e| {
+                name(match e {
+                    SunAwareError::NoPlan {
+                        leg, bound, detail, ..
+                    } => SunAwareError::NoPlan {
+                        leg,
+                        bound,
+                        detail,
+                        stats: Box::new(stats.clone()),
+                    },
+                    e => e,
+                })
+            })?
         } else {
-            let leg = plan_leg(planner, &walker, &at, cells[k + 1], end, settings).map_err(name)?;
-            for h in &leg.holds {
-                push_hold(&mut holds, base + h.row, h.until_s);
-            }
-            route_cells.extend(leg.route.profile[1..].iter().map(|r| r.row * w + r.col));
-            let last = leg.route.profile.last().expect("a leg has rows");
-            at.att = Attitude {
-                heading_rad: last.heading_rad,
-                pitch_rad: last.pitch_rad,
-                roll_rad: last.roll_rad,
-            };
-            at.walk = leg.end;
-            stats.nodes = stats.nodes.max(leg.stats.nodes);
-            stats.refine_nodes += leg.stats.refine_nodes;
-            stats.refined |= leg.stats.refined;
-            stats.label_bytes = leg.stats.label_bytes;
-            stats.add(&leg.stats);
-            leg.arrival_s
+            plan_leg(
+                planner,
+                &walker,
+                cells[k],
+                &starts,
+                cells[k + 1],
+                end,
+                want,
+                horizon_s,
+                settings,
+            )
+            .map_err(name)?
         };
-        at.cell = cells[k + 1];
+        stats.nodes = stats.nodes.max(front.stats.nodes);
+        stats.refine_nodes += front.stats.refine_nodes;
+        stats.refined |= front.stats.refined;
+        stats.label_bytes = stats.label_bytes.max(front.stats.label_bytes);
+        stats.add(&front.stats);
+        stats.complete &= front.complete;
+        if !front.complete && want == Want::Front && cut.is_none() {
+            cut = Some(k);
+        }
+        starts = front
+            .members
+            .iter()
+            .map(|m| LegStart {
+                walk: m.end,
+                att: m.end_att,
+            })
+            .collect();
+        fronts.push(front.members);
+    }
+    join_legs(planner, &walker, &names, visits, &cells, fronts, stats)
+}
+
+/// Joins the legs of the plan: the final leg's plan traced back through the origins to
+/// the first leg, into one route with its holds, stops and legs, replayed from the start
+/// through the step arithmetic (which must end in the last leg's state).
+fn join_legs<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    walker: &Walker<'_, '_>,
+    names: &[&str],
+    visits: &[Visit],
+    cells: &[usize],
+    fronts: Vec<Vec<LegPlan>>,
+    stats: SearchStats,
+) -> Result<SunAwarePlan, SunAwareError> {
+    let mut chain: Vec<&LegPlan> = Vec::new();
+    let mut j = 0;
+    for f in fronts.iter().rev() {
+        chain.push(&f[j]);
+        j = f[j].origin;
+    }
+    chain.reverse();
+    let (mut route_cells, mut holds, mut stops, mut legs) =
+        (vec![cells[0]], Vec::new(), Vec::new(), Vec::new());
+    for (k, leg) in chain.iter().enumerate() {
+        let base = route_cells.len() - 1;
+        for h in &leg.holds {
+            push_hold(&mut holds, base + h.row, h.until_s);
+        }
+        route_cells.extend(&leg.cells[1..]);
         let row = route_cells.len() - 1;
-        if let LegEnd::Visit(p) = end {
+        let payload_s = visits.get(k).and_then(|v| v.payload_s);
+        if let Some(p) = payload_s {
             stops.push(Stop { row, duration_s: p });
-            push_hold(&mut holds, row, at.walk.t_s);
+            push_hold(&mut holds, row, leg.end.t_s);
         }
         legs.push(PlanLeg {
             from: names[k].to_string(),
             to: names[k + 1].to_string(),
             end_row: row,
-            arrival_s,
-            done_s: if matches!(end, LegEnd::Visit(_)) {
-                at.walk.t_s
+            arrival_s: leg.arrival_s,
+            done_s: if payload_s.is_some() {
+                leg.end.t_s
             } else {
-                arrival_s
+                leg.arrival_s
             },
-            payload_s: visits.get(k).and_then(|v| v.payload_s),
+            payload_s,
         });
     }
-    stats.complete = true;
-    let expanded = stats.labels_expanded;
-    let route = route_along(planner, &route_cells, expanded);
+    let last = chain.last().expect("a plan has legs").end;
+    let route = route_along(planner, &route_cells, stats.labels_expanded);
     let replay = walk_plan(
-        &walker,
+        walker,
         &route,
         &holds,
         &stops,
@@ -518,7 +644,7 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
         LegEnd::Arrive,
     );
     let (walk, ledger, arrival_s) = match replay {
-        Ok(r) if (r.0.pack.soc - at.walk.pack.soc).abs() < 1e-9 => r,
+        Ok(r) if (r.0.pack.soc - last.pack.soc).abs() < 1e-9 => r,
         other => {
             return Err(SimError::Stage(format!(
                 "the sun-aware plan did not replay through the step arithmetic ({:?}); \
@@ -528,6 +654,22 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
             .into())
         }
     };
+    let fronts = fronts[..fronts.len() - 1]
+        .iter()
+        .map(|f| ArrivalFront {
+            members: f
+                .iter()
+                .map(|m| FrontMember {
+                    origin: m.origin,
+                    arrival_s: m.arrival_s,
+                    done_s: m.end.t_s,
+                    soc: m.end.pack.soc,
+                    cells: m.cells.clone(),
+                    holds: m.holds.clone(),
+                })
+                .collect(),
+        })
+        .collect();
     Ok(SunAwarePlan {
         route,
         holds,
@@ -538,6 +680,116 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
         min_soc: walk.min_soc,
         ledger,
         stats,
+        fronts,
+    })
+}
+
+/// Per leg, a lower bound of the time the legs after it take, seconds: their driving
+/// (the vehicle's lower bound over the straight distance, as the search's own order
+/// uses) and their payload runs.
+fn rest_lower_bounds<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    cells: &[usize],
+    visits: &[Visit],
+) -> Vec<f64> {
+    let z = |c: usize| planner.dem.data()[c] as f64;
+    let n = cells.len() - 1;
+    let mut rest = vec![0.0; n];
+    for k in (0..n.saturating_sub(1)).rev() {
+        let (a, b) = (cells[k + 1], cells[k + 2]);
+        let (d, dz) = (planner.distance_m(a, b), z(b) - z(a));
+        let drive = if d > 0.0 && dz.is_finite() {
+            planner.model.time_lower_bound_s(d, dz)
+        } else {
+            0.0
+        };
+        let payload = visits.get(k + 1).and_then(|v| v.payload_s).unwrap_or(0.0);
+        rest[k] = rest[k + 1] + drive + payload;
+    }
+    rest
+}
+
+/// A leg whose end is in the cell of its start: nothing to drive; each start does the
+/// end's action in place (the payload run at a site).
+#[allow(clippy::too_many_arguments)]
+fn in_place(
+    walker: &Walker<'_, '_>,
+    width: usize,
+    cell: usize,
+    starts: &[LegStart],
+    end: LegEnd,
+    want: Want,
+    horizon_s: f64,
+    settings: &SunAwareSettings,
+    point: &str,
+) -> Result<LegFront, SunAwareError> {
+    let mut members = Vec::new();
+    let mut last = Halt::Reserve;
+    for (k, st) in starts.iter().enumerate() {
+        let mut walk = st.walk;
+        let t = walk.t_s;
+        let pose = Pose {
+            col: cell % width,
+            row: cell / width,
+            att: st.att,
+        };
+        let done = match end {
+            LegEnd::Visit(p) => walker.visit(&mut walk, &pose, p, None),
+            LegEnd::Arrive => walker.arrive(&mut walk, &pose, None),
+            LegEnd::Pass => Ok(()),
+        }
+        .and_then(|()| {
+            if end != LegEnd::Arrive && walk.t_s > horizon_s {
+                Err(Halt::Horizon)
+            } else {
+                Ok(())
+            }
+        });
+        match done {
+            Ok(()) => members.push(LegPlan {
+                cells: vec![cell],
+                holds: Vec::new(),
+                arrival_s: t,
+                end: walk,
+                end_att: st.att,
+                origin: k,
+            }),
+            Err(h) => last = h,
+        }
+    }
+    if members.is_empty() {
+        let (bound, what) = match last {
+            Halt::Horizon => (Bound::Horizon, "runs past the deadline"),
+            _ => (Bound::Reserve, "runs below the reserve state of charge"),
+        };
+        return Err(SunAwareError::NoPlan {
+            leg: None,
+            bound,
+            detail: format!(
+                "the payload run at {point} {what}; a larger battery or panels, an \
+                 earlier start or a later deadline may help"
+            ),
+            stats: Box::default(),
+        });
+    }
+    match want {
+        Want::Front => {
+            merge_front(&mut members, settings);
+        }
+        Want::Best => {
+            let mut best = 0;
+            for i in 1..members.len() {
+                if better(&members[i], &members[best], settings.objective) {
+                    best = i;
+                }
+            }
+            members = vec![members.swap_remove(best)];
+        }
+    }
+    Ok(LegFront {
+        members,
+        complete: true,
+        stats: SearchStats::default(),
     })
 }
 
@@ -586,10 +838,10 @@ fn push_hold(holds: &mut Vec<Hold>, row: usize, until_s: f64) {
     }
 }
 
-/// Where a leg starts: the cell, the energy state and the attitude the rover has there.
+/// One start of a leg's search (an arrival of the previous leg): the energy state and
+/// the attitude the rover has there.
 #[derive(Debug, Clone, Copy)]
 struct LegStart {
-    cell: usize,
     walk: Walk,
     att: Attitude,
 }
@@ -605,34 +857,57 @@ enum LegEnd {
     Pass,
 }
 
-/// One leg's plan.
+/// One leg's plan from one of its starts.
 #[derive(Debug, Clone)]
 struct LegPlan {
-    /// The leg's route (its first row is the leg's start).
-    route: Route,
+    /// The fine cells of the leg's route (the first is the leg's start).
+    cells: Vec<usize>,
     /// Holds, by the leg route's rows.
     holds: Vec<Hold>,
     /// Arrival at the leg's end, seconds after the start.
     arrival_s: f64,
     /// The state after the leg's end (after the payload run at a site).
     end: Walk,
+    /// The attitude the rover has at the leg's end.
+    end_att: Attitude,
+    /// The start it continues (an index into the leg's starts).
+    origin: usize,
+}
+
+/// What a leg's search gives: the chosen plan ([`Want::Best`]) or the arrival front.
+#[derive(Debug, Clone)]
+struct LegFront {
+    members: Vec<LegPlan>,
+    /// Whether the search ran to its end (false: the label budget cut it).
+    complete: bool,
     stats: SearchStats,
 }
 
-/// One leg searched sun-aware: on the coarse lattice, then refined (module doc).
+/// One leg searched sun-aware from `starts` (all in cell `from`): on the coarse
+/// lattice, then refined (module doc). `horizon_s`: the search's time horizon.
+#[allow(clippy::too_many_arguments)]
 fn plan_leg<M: StepModel + ?Sized>(
     planner: &Planner<'_, M>,
     walker: &Walker<'_, '_>,
-    from: &LegStart,
+    from: usize,
+    starts: &[LegStart],
     to: usize,
     end: LegEnd,
+    want: Want,
+    horizon_s: f64,
     settings: &SunAwareSettings,
-) -> Result<LegPlan, SunAwareError> {
+) -> Result<LegFront, SunAwareError> {
+    let leg = LegSearch {
+        starts,
+        end,
+        want,
+        horizon_s,
+    };
     // A lattice that cannot reach the leg's end at all is halved, down to the fine grid.
     let mut b = settings.block_cells;
     let mut coarse = loop {
-        let lat = Lattice::new(planner, b, from.cell, to);
-        match search_once(planner, lat, walker, from, end, settings, None) {
+        let lat = Lattice::new(planner, b, from, to);
+        match search_once(planner, lat, walker, &leg, settings, None) {
             Err(SunAwareError::NoPlan {
                 bound: Bound::Tilt, ..
             }) if b > 1 => b /= 2,
@@ -644,28 +919,79 @@ fn plan_leg<M: StepModel + ?Sized>(
     if !settings.refine || b2 == b || b < settings.block_cells {
         return Ok(coarse);
     }
-    let fine_lat = Lattice::new(planner, b2, from.cell, to);
-    let mask = corridor(&fine_lat, &coarse.route, 2 * b);
+    let fine_lat = Lattice::new(planner, b2, from, to);
+    let mut mask = vec![false; fine_lat.nodes()];
+    let mut cells: Vec<usize> = coarse
+        .members
+        .iter()
+        .flat_map(|m| m.cells.iter().copied())
+        .collect();
+    cells.sort_unstable();
+    cells.dedup();
+    corridor(&fine_lat, &cells, 2 * b, &mut mask);
     let refine_nodes = mask.iter().filter(|&&m| m).count();
-    let refined = search_once(planner, fine_lat, walker, from, end, settings, Some(mask));
-    let mut out = match refined {
-        Ok(mut fine) if better(&fine, &coarse, settings.objective) => {
+    let refined = search_once(planner, fine_lat, walker, &leg, settings, Some(mask));
+    let mut out = match (refined, want) {
+        (Ok(mut fine), Want::Best)
+            if better(&fine.members[0], &coarse.members[0], settings.objective) =>
+        {
             fine.stats.refined = true;
             fine.stats.add(&coarse.stats);
+            fine.complete = coarse.complete;
             fine
         }
-        Ok(fine) => {
+        (Ok(fine), Want::Best) => {
             coarse.stats.add(&fine.stats);
             coarse
         }
-        Err(SunAwareError::NoPlan { stats, .. }) => {
+        (Ok(fine), Want::Front) => {
+            let n = coarse.members.len();
+            coarse.stats.add(&fine.stats);
+            coarse.members.extend(fine.members);
+            let kept = merge_front(&mut coarse.members, settings);
+            coarse.stats.refined = kept.iter().any(|&k| k >= n);
+            coarse
+        }
+        (Err(SunAwareError::NoPlan { stats, .. }), _) => {
             coarse.stats.add(&stats);
             coarse
         }
-        Err(e) => return Err(e),
+        (Err(e), _) => return Err(e),
     };
     out.stats.refine_nodes = refine_nodes;
     Ok(out)
+}
+
+/// Keeps the members of `front` that no other member of the same time bucket (of its
+/// end state) dominates by the search's rule; returns the kept members' indices in the
+/// given order (the first of two equal ones is kept).
+fn merge_front(front: &mut Vec<LegPlan>, settings: &SunAwareSettings) -> Vec<usize> {
+    let eps = settings.soc_resolution;
+    let key = |m: &LegPlan| (m.end.t_s, m.end.pack.soc);
+    let bucket = |t: f64| (t / settings.bucket_s) as usize;
+    let mut kept: Vec<usize> = Vec::new();
+    for i in 0..front.len() {
+        let (t, soc) = key(&front[i]);
+        let same = |j: &usize| bucket(key(&front[*j]).0) == bucket(t);
+        if kept
+            .iter()
+            .filter(|j| same(j))
+            .any(|&j| dominates(key(&front[j]).0, key(&front[j]).1, t, soc, eps))
+        {
+            continue;
+        }
+        kept.retain(|j| !(same(j) && dominates(t, soc, key(&front[*j]).0, key(&front[*j]).1, eps)));
+        kept.push(i);
+    }
+    let mut k = 0;
+    let mut i = 0;
+    front.retain(|_| {
+        let keep = kept.get(k) == Some(&i);
+        k += keep as usize;
+        i += 1;
+        keep
+    });
+    kept
 }
 
 /// One season planned sun-aware: the plan (or why there is none) and the season's
@@ -731,23 +1057,39 @@ fn season_result(
     })
 }
 
-/// One search on `lat` (only the `allowed` nodes, when given) for a leg from `from`.
+/// What one leg's search starts from and looks for.
+struct LegSearch<'a> {
+    starts: &'a [LegStart],
+    end: LegEnd,
+    want: Want,
+    horizon_s: f64,
+}
+
+/// One search on `lat` (only the `allowed` nodes, when given) for `leg`.
 fn search_once<M: StepModel + ?Sized>(
     planner: &Planner<'_, M>,
     lat: Lattice,
     walker: &Walker<'_, '_>,
-    from: &LegStart,
-    end: LegEnd,
+    leg: &LegSearch<'_>,
     settings: &SunAwareSettings,
     allowed: Option<Vec<bool>>,
-) -> Result<LegPlan, SunAwareError> {
+) -> Result<LegFront, SunAwareError> {
     let mut search = Search::new(planner, lat, walker, settings);
     search.allowed = allowed;
-    search.start_att = from.att;
-    search.end = end;
+    search.end = leg.end;
+    search.want = leg.want;
+    search.horizon_s = leg.horizon_s;
     search.reachable()?;
-    let found = search.run(from.walk)?;
-    search.finish(found, from)
+    let found = search.run(leg.starts)?;
+    let members = found
+        .iter()
+        .map(|&i| search.leg_plan(i, leg.starts))
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(LegFront {
+        members,
+        complete: search.stats.complete,
+        stats: std::mem::take(&mut search.stats),
+    })
 }
 
 /// Whether leg plan `a` beats leg plan `b` on the objective.
@@ -759,14 +1101,14 @@ fn better(a: &LegPlan, b: &LegPlan, objective: SunAwareObjective) -> bool {
     }
 }
 
-/// The nodes of `lat` within `radius` fine cells (Chebyshev) of a cell of `route`.
-fn corridor(lat: &Lattice, route: &Route, radius: usize) -> Vec<bool> {
+/// Marks the nodes of `lat` within `radius` fine cells (Chebyshev) of a cell of `cells`.
+fn corridor(lat: &Lattice, cells: &[usize], radius: usize, mark: &mut [bool]) {
     let (nc, nr) = (lat.nc, lat.nr);
     let r = radius.div_ceil(lat.b) as i64;
-    let mut mark = vec![false; nc * nr];
-    for p in &route.profile {
-        let i = (p.col as f64 - lat.c0 as f64) / lat.b as f64;
-        let j = (p.row as f64 - lat.r0 as f64) / lat.b as f64;
+    for &cell in cells {
+        let (col, row) = (cell % lat.w, cell / lat.w);
+        let i = (col as f64 - lat.c0 as f64) / lat.b as f64;
+        let j = (row as f64 - lat.r0 as f64) / lat.b as f64;
         let (i, j) = (i.round() as i64, j.round() as i64);
         for dj in -r..=r {
             for di in -r..=r {
@@ -777,7 +1119,6 @@ fn corridor(lat: &Lattice, route: &Route, radius: usize) -> Vec<bool> {
             }
         }
     }
-    mark
 }
 
 fn setting(name: &'static str, value: String, expected: &'static str) -> SunAwareError {
@@ -933,6 +1274,9 @@ struct Label {
     alive: bool,
     /// Edge index (node · SLOTS + slot) of the last drive (u32::MAX: none yet).
     in_edge: u32,
+    /// Which start label its chain began at (an index into the search's starts: the
+    /// arrival of the previous leg it continues).
+    origin: u32,
 }
 
 struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
@@ -948,15 +1292,36 @@ struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
     fronts: std::collections::HashMap<usize, Vec<u32>>,
     buckets: usize,
     heap: BinaryHeap<Reverse<(u64, u32)>>,
-    /// Panel output of waits: (arrival edge, node, step after the bucket) → per step.
-    wait_cache: std::collections::HashMap<(u32, u32, u32), std::rc::Rc<[f64]>>,
+    /// Panel output of waits: (arrival edge, node, step after the bucket, origin for a
+    /// label without an arrival edge) → per step.
+    wait_cache: std::collections::HashMap<(u32, u32, u32, u32), std::rc::Rc<[f64]>>,
     /// The nodes the search may use (None: all).
     allowed: Option<Vec<bool>>,
-    /// The attitude the rover has at the leg's start (for waits there).
-    start_att: Attitude,
+    /// The attitude the rover has at the leg's start, per start label (for waits there
+    /// before its first drive).
+    start_att: Vec<Attitude>,
     /// What happens at the leg's end.
     end: LegEnd,
+    /// Whether the leg's arrival front is wanted, or the objective's best arrival.
+    want: Want,
+    /// The search's time horizon: the deadline less a lower bound of the time the later
+    /// legs need (their driving and payload runs), seconds after the run's start.
+    horizon_s: f64,
+    /// The arrival front by time bucket (with [`Want::Front`]).
+    arrivals: std::collections::HashMap<usize, Vec<u32>>,
+    /// The earliest arrival with a full pack, seconds (with [`Want::Front`]).
+    full_at: Option<f64>,
     stats: SearchStats,
+}
+
+/// What a leg's search returns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Want {
+    /// The best arrival by the objective (the final leg).
+    Best,
+    /// Every arrival no other arrival of its time bucket dominates (a leg before the
+    /// last: the next leg starts from all of them).
+    Front,
 }
 
 impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
@@ -994,8 +1359,12 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             heap: BinaryHeap::new(),
             wait_cache: Default::default(),
             allowed: None,
-            start_att: Attitude::default(),
+            start_att: Vec::new(),
             end: LegEnd::Arrive,
+            want: Want::Best,
+            horizon_s: walker.clock.horizon_s(),
+            arrivals: Default::default(),
+            full_at: None,
             stats: SearchStats {
                 nodes: lat.nodes(),
                 label_bytes: std::mem::size_of::<Label>(),
@@ -1125,9 +1494,10 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
     /// The attitude a label's rover has while it waits: that of its last fine step.
     fn arrival_pose(&self, l: &Label) -> Pose {
         let cell = self.lat.cell(l.node as usize);
+        let start = self.start_att[l.origin as usize];
         let att = match self.edges.get(l.in_edge as usize) {
-            Some(Some(Ok(steps))) => steps.last().map_or(self.start_att, |f| f.pose.att),
-            _ => self.start_att,
+            Some(Some(Ok(steps))) => steps.last().map_or(start, |f| f.pose.att),
+            _ => start,
         };
         Pose {
             col: cell % self.lat.w,
@@ -1144,7 +1514,9 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         // before its end: steps from one before the bucket's first to one before `last`.
         let last = self.walker.step_of(until);
         let k0 = last.saturating_sub(per + 1);
-        let key = (l.in_edge, l.node, last as u32);
+        // Labels that have not driven yet wait with their own start's attitude.
+        let origin = if l.in_edge == u32::MAX { l.origin } else { 0 };
+        let key = (l.in_edge, l.node, last as u32, origin);
         if let Some(g) = self.wait_cache.get(&key) {
             return (g.clone(), k0);
         }
@@ -1172,7 +1544,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         let eps = self.settings.soc_resolution;
         if front.iter().any(|&i| {
             let o = &labels[i as usize];
-            o.walk.t_s <= t && o.walk.pack.soc + eps >= soc
+            dominates(o.walk.t_s, o.walk.pack.soc, t, soc, eps)
         }) {
             self.stats.labels_dominated += 1;
             return;
@@ -1180,7 +1552,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         let before = front.len();
         front.retain(|&i| {
             let o = &mut labels[i as usize];
-            let beaten = t <= o.walk.t_s && soc + eps >= o.walk.pack.soc;
+            let beaten = dominates(t, soc, o.walk.t_s, o.walk.pack.soc, eps);
             if beaten {
                 o.alive = false;
             }
@@ -1199,17 +1571,23 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         }
     }
 
-    /// Runs the search; returns the label of the chosen arrival.
-    fn run(&mut self, w0: Walk) -> Result<u32, SunAwareError> {
-        let s = self.lat.node_of(self.lat.start_cell);
-        self.admit(Label {
-            walk: w0,
-            node: s as u32,
-            parent: u32::MAX,
-            how: START,
-            alive: true,
-            in_edge: u32::MAX,
-        });
+    /// Runs the search from `starts` (every one at the leg's start cell); returns the
+    /// label of the chosen arrival ([`Want::Best`]) or the arrival front's labels in the
+    /// order they were made ([`Want::Front`]).
+    fn run(&mut self, starts: &[LegStart]) -> Result<Vec<u32>, SunAwareError> {
+        let s = self.lat.node_of(self.lat.start_cell) as u32;
+        self.start_att = starts.iter().map(|x| x.att).collect();
+        for (k, x) in starts.iter().enumerate() {
+            self.admit(Label {
+                walk: x.walk,
+                node: s,
+                parent: u32::MAX,
+                how: START,
+                alive: true,
+                in_edge: u32::MAX,
+                origin: k as u32,
+            });
+        }
         let goal = self.lat.goal() as u32;
         let mut best: Option<u32> = None;
         while let Some(Reverse((_, i))) = self.heap.pop() {
@@ -1219,29 +1597,81 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             }
             if l.node == goal {
                 self.stats.complete = true;
-                return Ok(i);
+                return Ok(vec![i]);
             }
             // A full arrival cannot be beaten by a later one.
-            if let Some(b) = best {
-                let o = &self.labels[b as usize].walk;
-                if o.pack.soc >= FULL_SOC && l.walk.t_s + self.h[l.node as usize] >= o.t_s {
+            if let Some(t_full) = self.full_arrival(best) {
+                if l.walk.t_s + self.h[l.node as usize] >= t_full {
                     self.stats.complete = true;
-                    return Ok(b);
+                    return self.chosen(best).ok_or_else(|| self.exhausted_error());
                 }
             }
             if self.labels.len() >= self.settings.max_labels {
                 self.stats.complete = false;
-                return best.ok_or_else(|| self.budget_error());
+                return self.chosen(best).ok_or_else(|| self.budget_error());
             }
             self.stats.labels_expanded += 1;
             self.expand(i, &l, &mut best);
         }
         self.stats.complete = true;
-        best.ok_or_else(|| self.exhausted_error())
+        self.chosen(best).ok_or_else(|| self.exhausted_error())
+    }
+
+    /// The time of the earliest full-pack arrival found so far (`best`: the objective's
+    /// best arrival, with [`Want::Best`]).
+    fn full_arrival(&self, best: Option<u32>) -> Option<f64> {
+        match self.want {
+            Want::Front => self.full_at,
+            Want::Best => best
+                .map(|b| &self.labels[b as usize].walk)
+                .filter(|o| o.pack.soc >= FULL_SOC)
+                .map(|o| o.t_s),
+        }
+    }
+
+    /// The search's answer so far: the best arrival, or the arrival front (None when
+    /// empty).
+    fn chosen(&self, best: Option<u32>) -> Option<Vec<u32>> {
+        match self.want {
+            Want::Best => best.map(|b| vec![b]),
+            Want::Front => {
+                let mut front: Vec<u32> = self.arrivals.values().flatten().copied().collect();
+                front.sort_unstable();
+                (!front.is_empty()).then_some(front)
+            }
+        }
+    }
+
+    /// Admits an arrival into the leg's arrival front unless an arrival of the same
+    /// time bucket dominates it (the rule of [`Self::admit`]); removes those it
+    /// dominates.
+    fn admit_arrival(&mut self, l: Label) {
+        let b = (l.walk.t_s / self.settings.bucket_s) as usize;
+        let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
+        let eps = self.settings.soc_resolution;
+        let labels = &self.labels;
+        let front = self.arrivals.entry(b).or_default();
+        let walk = |i: &u32| &labels[*i as usize].walk;
+        if front
+            .iter()
+            .any(|i| dominates(walk(i).t_s, walk(i).pack.soc, t, soc, eps))
+        {
+            self.stats.labels_dominated += 1;
+            return;
+        }
+        let before = front.len();
+        front.retain(|i| !dominates(t, soc, walk(i).t_s, walk(i).pack.soc, eps));
+        self.stats.labels_dominated += (before - front.len()) as u64;
+        front.push(self.labels.len() as u32);
+        if soc >= FULL_SOC {
+            self.full_at = Some(self.full_at.map_or(t, |f| f.min(t)));
+        }
+        self.labels.push(Label { alive: false, ..l });
+        self.stats.labels_created += 1;
     }
 
     fn expand(&mut self, i: u32, l: &Label, best: &mut Option<u32>) {
-        let horizon = self.walker.clock.horizon_s();
+        let horizon = self.horizon_s;
         // Wait until the next bucket boundary.
         let until = ((l.walk.t_s / self.settings.bucket_s).floor() + 1.0) * self.settings.bucket_s;
         if until + self.h[l.node as usize] > horizon {
@@ -1311,6 +1741,10 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                     LegEnd::Pass => {}
                 }
             }
+            if res.is_ok() && slot == GOAL_SLOT && w.t_s > horizon {
+                // Too late for the later legs to arrive before the deadline.
+                res = Err(Halt::Horizon);
+            }
             if let Err(h) = res {
                 self.cut(h);
                 continue;
@@ -1322,14 +1756,16 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                 how: slot,
                 alive: true,
                 in_edge: (node * SLOTS + slot as usize) as u32,
+                origin: l.origin,
             };
             if slot != GOAL_SLOT {
                 self.admit(new);
                 continue;
             }
-            match self.settings.objective {
-                SunAwareObjective::EarliestArrival => self.push(new),
-                SunAwareObjective::MostCharge => {
+            match (self.want, self.settings.objective) {
+                (Want::Front, _) => self.admit_arrival(new),
+                (Want::Best, SunAwareObjective::EarliestArrival) => self.push(new),
+                (Want::Best, SunAwareObjective::MostCharge) => {
                     let idx = self.labels.len() as u32;
                     let better = best.is_none_or(|b| {
                         let o = &self.labels[b as usize].walk;
@@ -1400,8 +1836,9 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         )
     }
 
-    /// The leg plan of the chosen arrival label.
-    fn finish(mut self, found: u32, from: &LegStart) -> Result<LegPlan, SunAwareError> {
+    /// The leg plan of arrival label `found` (of a search from `starts`), replayed
+    /// through the step arithmetic from its start, which must end in the label's state.
+    fn leg_plan(&self, found: u32, starts: &[LegStart]) -> Result<LegPlan, SunAwareError> {
         let mut chain = Vec::new();
         let mut i = found;
         while i != u32::MAX {
@@ -1426,6 +1863,8 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                 cells.extend(steps.iter().map(|f| f.to));
             }
         }
+        let label = self.labels[found as usize];
+        let from = &starts[label.origin as usize];
         let route = route_along(self.planner, &cells, self.stats.labels_expanded);
         let replay = walk_plan(
             self.walker,
@@ -1436,21 +1875,42 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
             from.att,
             self.end,
         );
-        let (end, _, arrival_s) = replay.map_err(|h| {
-            SimError::Stage(format!(
-                "the sun-aware plan did not replay through the step arithmetic ({h:?}); \
-                 please report this mission to the sunward developers"
-            ))
-        })?;
-        let stats = std::mem::take(&mut self.stats);
+        let exact = |r: &(Walk, Ledger, f64)| {
+            let (w, o) = (&r.0, &label.walk);
+            let t_ok = self.end == LegEnd::Arrive || (w.t_s - o.t_s).abs() < 1e-6;
+            t_ok && (w.pack.soc - o.pack.soc).abs() < 1e-9 && (w.min_soc - o.min_soc).abs() < 1e-9
+        };
+        let (end, _, arrival_s) = match replay {
+            Ok(r) if exact(&r) => r,
+            other => {
+                return Err(SimError::Stage(format!(
+                    "the sun-aware plan did not replay through the step arithmetic ({:?}); \
+                     please report this mission to the sunward developers",
+                    other.map(|r| r.0.pack.soc)
+                ))
+                .into())
+            }
+        };
+        let last = route.profile.last().expect("a leg has rows");
         Ok(LegPlan {
-            route,
+            cells,
             holds,
             arrival_s,
             end,
-            stats,
+            end_att: Attitude {
+                heading_rad: last.heading_rad,
+                pitch_rad: last.pitch_rad,
+                roll_rad: last.roll_rad,
+            },
+            origin: label.origin as usize,
         })
     }
+}
+
+/// Whether (t_a, SOC_a) dominates (t_b, SOC_b) by the search's rule: no later, and
+/// at most `eps` less charge.
+fn dominates(t_a: f64, soc_a: f64, t_b: f64, soc_b: f64, eps: f64) -> bool {
+    t_a <= t_b && soc_a + eps >= soc_b
 }
 
 /// Walks a route with holds and payload stops through the step arithmetic from `w0`
