@@ -20,7 +20,7 @@
 //! monotone and subadditive (contracts 1 and 2 of [`super::cost`]). With h_t consistent
 //! forward, c'(u, v) − p(u) + p(v) = ½(c' + h_t(v) − h_t(u)) + ½(c' − h_s(v) + h_s(u))
 //! ≥ 0, so both searches see non-negative costs, their keys never decrease, and the
-//! radix heap serves both. Keys: forward g_f(v) + p(v), backward g_b(v) − p(v). With μ
+//! bucket queue serves both. Keys: forward g_f(v) + p(v), backward g_b(v) − p(v). With μ
 //! the best g_f(v) + g_b(v) over cells labelled by both, the searches stop once the two
 //! smallest queued keys sum to at least μ: every cell with forward distance below the
 //! forward top key is settled, and likewise backward, so on a path shorter than the two
@@ -45,7 +45,7 @@
 //! Two cost words per cell (8 bytes each, as in [`super::astar`]: a negative sign marks
 //! a settled cell, −∞ a cell blocked beforehand) and no parent arrays: the route is
 //! traced from the meeting cell by finding, at each cell, the neighbour whose cost plus
-//! the step's reduced cost (recomputed by the same code, [`Planner::reduced`]) equals
+//! the step's reduced cost (recomputed by the same code as in the search) equals
 //! the cell's cost to the bit. With the DEM (4 bytes) and the flags (1) that is about 21
 //! bytes per cell plus the queues. Should a trace fail (it cannot, short of a cycle of
 //! zero-cost steps, which a vehicle with rolling and hotel losses does not have), or no
@@ -58,8 +58,8 @@ use crate::plan::astar::{
     dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
     Unreachable, Workspace, FREE,
 };
-use crate::plan::cost::{Blocked, StepModel};
-use crate::plan::queue::RadixHeap;
+use crate::plan::cost::{Blocked, StepModel, WheelBounds};
+use crate::plan::queue::BucketQueue;
 
 /// Cells per side a round aims to settle at most (about 10 ms of work); a round aims at
 /// 1/64 of the grid when that is less (at least 8 cells).
@@ -74,7 +74,7 @@ pub const MIN_CELLS: usize = 1 << 20;
 #[derive(Debug, Default)]
 pub struct BiArrays {
     g: [Vec<AtomicU64>; 2],
-    heap: [RadixHeap; 2],
+    heap: [BucketQueue; 2],
 }
 
 #[inline]
@@ -94,7 +94,7 @@ fn earlier(a: (f64, u32), b: (f64, u32)) -> bool {
 
 /// One direction's search state.
 struct Side<'h> {
-    heap: &'h mut RadixHeap,
+    heap: &'h mut BucketQueue,
     /// The first entry above the round's threshold, held for the next round.
     pending: Option<(f64, u32)>,
     /// Cells labelled this round.
@@ -136,6 +136,7 @@ struct Ctx<'p, 'a, M: StepModel + ?Sized> {
     h: i64,
     /// Cells per round aimed at.
     round: u64,
+    wheel: Option<WheelBounds>,
 }
 
 impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
@@ -209,7 +210,14 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 (at, v, at.col + di.dc, at.row + di.dr)
             };
             let next = if REV { from.cell } else { to };
-            if is_closed(ld(g, next)) {
+            let g_next = ld(g, next);
+            if is_closed(g_next) {
+                continue;
+            }
+            if self
+                .p
+                .cannot_improve(self.wheel.as_ref(), di, from.cell, to, self.k, gu, g_next)
+            {
                 continue;
             }
             let Some(c) = self
@@ -334,7 +342,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
 }
 
 /// A side whose queue holds its start `cell` with `key`.
-fn side(heap: &mut RadixHeap, key: f64, cell: usize) -> Side<'_> {
+fn side(heap: &mut BucketQueue, key: f64, cell: usize) -> Side<'_> {
     heap.push(key.max(0.0), cell as u32);
     Side {
         heap,
@@ -384,6 +392,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             w: self.dem.width() as i64,
             h: self.dem.height() as i64,
             round: (n as u64 / 64).clamp(8, ROUND_CELLS),
+            wheel: self.model.wheel_bounds(),
         };
         let [gf, gb] = &mut bi.g;
         let init = |g: &mut Vec<AtomicU64>| {
@@ -412,8 +421,9 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let g = [&bi.g[0][..], &bi.g[1][..]];
         let w = self.dem.width();
         let [hf, hb] = &mut bi.heap;
-        hf.clear();
-        hb.clear();
+        let width = self.queue_width();
+        hf.reset(width);
+        hb.reset(width);
         st(g[0], start, 0.0);
         st(g[1], goal, 0.0);
         let (sc, sr) = ((start % w) as i64, (start / w) as i64);

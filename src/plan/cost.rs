@@ -133,6 +133,55 @@ pub trait StepModel: Sync {
     fn time_lower_bound_s(&self, d_m: f64, dz_m: f64) -> f64;
     /// k ≥ 0 with energy ≥ k·dz for every step, joules per metre of rise.
     fn regen_bound_j_per_m(&self) -> f64;
+    /// The constants of the two lower bounds when they have the wheel-work form of
+    /// [`WheelBounds`] (then [`Self::energy_lower_bound_j`] and
+    /// [`Self::time_lower_bound_s`] must be [`WheelBounds::energy_j`] and
+    /// [`WheelBounds::time_s`]); the planner then evaluates its heuristic without
+    /// calls and with one square root. None (the default): the two methods are called.
+    fn wheel_bounds(&self) -> Option<WheelBounds> {
+        None
+    }
+}
+
+/// Lower bounds of the firm-ground wheel-work form (DESIGN.md; contract 1 and 2 of the
+/// module doc): with W = m g (C_rr·d + dz) and L = √(d² + dz²), energy ≥ max(W/η, ρ·W)
+/// + P_hotel·L/v_max (W/η for W > 0, ρ·W otherwise) and time ≥ L/v_max.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WheelBounds {
+    /// Weight m·g, newtons.
+    pub weight_n: f64,
+    /// Rolling-resistance coefficient.
+    pub crr: f64,
+    /// The best drive efficiency.
+    pub eta: f64,
+    /// Regenerated fraction of braking work.
+    pub rho: f64,
+    /// Hotel power, watts.
+    pub hotel_w: f64,
+    /// Top speed, m/s.
+    pub v_max: f64,
+}
+
+impl WheelBounds {
+    /// The energy bound, joules, for length `l_m` = √(d² + dz²) given.
+    #[inline]
+    pub fn energy_with_length_j(&self, d_m: f64, dz_m: f64, l_m: f64) -> f64 {
+        let w = self.weight_n * (self.crr * d_m + dz_m);
+        let drive = if w > 0.0 { w / self.eta } else { self.rho * w };
+        drive + self.hotel_w * l_m / self.v_max
+    }
+
+    /// The energy bound, joules.
+    #[inline]
+    pub fn energy_j(&self, d_m: f64, dz_m: f64) -> f64 {
+        self.energy_with_length_j(d_m, dz_m, (d_m * d_m + dz_m * dz_m).sqrt())
+    }
+
+    /// The time bound, seconds.
+    #[inline]
+    pub fn time_s(&self, d_m: f64, dz_m: f64) -> f64 {
+        (d_m * d_m + dz_m * dz_m).sqrt() / self.v_max
+    }
 }
 
 /// What the route minimises: a weighted sum of slope length (per metre), driving time
@@ -192,6 +241,21 @@ impl Objective {
         }
         if self.per_j > 0.0 {
             b += self.per_j * m.energy_lower_bound_j(d_m, dz_m);
+        }
+        b
+    }
+
+    /// [`Self::lower_bound`] for a model with [`WheelBounds`]: the same number to the bit,
+    /// with one square root.
+    #[inline]
+    pub fn lower_bound_wheel(&self, wb: &WheelBounds, d_m: f64, dz_m: f64) -> f64 {
+        let l = (d_m * d_m + dz_m * dz_m).sqrt();
+        let mut b = self.per_m * l;
+        if self.per_s > 0.0 {
+            b += self.per_s * (l / wb.v_max);
+        }
+        if self.per_j > 0.0 {
+            b += self.per_j * wb.energy_with_length_j(d_m, dz_m, l);
         }
         b
     }

@@ -1,54 +1,12 @@
-//! A monotone priority queue (radix heap) for non-negative f64 keys.
-//!
-//! Method: the radix heap of Ahuja, Mehlhorn, Orlin and Tarjan, "Faster algorithms for
-//! the shortest path problem", Journal of the ACM 37(2), 1990, here with a radix of 16
-//! (their paper also treats larger radices). It is correct only when no key smaller than
-//! `last`, the last key popped, is pushed, which A* with a consistent heuristic
-//! guarantees (f never decreases along the search). Non-negative IEEE 754 doubles order
-//! like their bit patterns as u64, so the heap works on those bits. A key that rounding
-//! made a hair smaller than `last` is raised to `last` (a change of the order of one ulp,
-//! far below the planner's 1e-9 tolerance).
-//!
-//! # Buckets
-//! A key k equal to `last` goes to bucket 0. Otherwise let L be the highest 4-bit digit
-//! (nibble) where k and `last` differ and d the value of k's digit there: k goes to
-//! bucket 1 + 16·L + d. Bucket order is key order: keys in a lower level agree with
-//! `last` on digit L, where keys of level L are larger, and within a level the digit
-//! decides. Popping from an empty bucket 0 takes the lowest non-empty bucket, makes its
-//! smallest key the new `last` and spreads its entries again; they all agree with the new
-//! `last` on digit L and above, so each lands in a lower level. An entry therefore moves
-//! at most 16 times (64 with one bucket per bit, the common form: the planner's keys
-//! differ in some 40 low mantissa bits, and entries there moved about 30 times each).
-//! A bit mask of the non-empty buckets finds the next one without scanning.
-//! An entry is three 32-bit words (key high, key low, value), 12 bytes instead of the 16
-//! a `(u64, u32)` pair takes with its padding.
+//! A monotone priority queue for the planner's f64 keys: buckets of a fixed key width
+//! over a circular window, with an exact binary heap for the bucket being served
+//! ([`BucketQueue`]). It replaced a radix heap (Ahuja, Mehlhorn, Orlin and Tarjan, JACM
+//! 37(2), 1990), in which an entry moved up to 16 times between buckets: here an entry
+//! moves once into its bucket and once into the heap (instruction counts in
+//! benches/results/2026-12-02-route-search.txt).
 
-/// Bits per digit.
-const DIGIT_BITS: u32 = 4;
-/// Digits in a 64-bit key.
-const LEVELS: usize = 64usize.div_ceil(DIGIT_BITS as usize);
-/// Number of buckets: "equal to last" plus one per (level, digit value).
-const BUCKETS: usize = 1 + (LEVELS << DIGIT_BITS);
-/// Words of the occupancy mask.
-const MASK_WORDS: usize = (BUCKETS - 1).div_ceil(64);
-
-/// Radix heap of (key, value) with monotone keys.
-#[derive(Debug, Clone)]
-pub struct RadixHeap {
-    buckets: Vec<Vec<Entry>>,
-    /// Bit i − 1 set ⇔ bucket i (≥ 1) is non-empty.
-    occupied: [u64; MASK_WORDS],
-    last: u64,
-    len: usize,
-}
-
-impl Default for RadixHeap {
-    fn default() -> Self {
-        RadixHeap::new()
-    }
-}
-
-/// (key high bits, key low bits, value).
+/// (key high bits, key low bits, value): 12 bytes instead of the 16 a `(u64, u32)` pair
+/// takes with its padding.
 type Entry = [u32; 3];
 
 #[inline]
@@ -61,27 +19,111 @@ fn key_of(e: &Entry) -> u64 {
     (u64::from(e[0]) << 32) | u64::from(e[1])
 }
 
-/// The bucket of `key` (≥ `last`), see the module doc.
-#[inline]
-fn bucket_of(key: u64, last: u64) -> usize {
-    let x = key ^ last;
-    if x == 0 {
-        return 0;
-    }
-    let level = (63 - x.leading_zeros()) / DIGIT_BITS;
-    let digit = (key >> (DIGIT_BITS * level)) & ((1 << DIGIT_BITS) - 1);
-    1 + ((level as usize) << DIGIT_BITS) + digit as usize
+/// A monotone priority queue of (f64 key, u32 value) by buckets of a fixed key width
+/// with an exact heap for the current bucket.
+///
+/// Method: a bucket queue in the manner of Dial ("Algorithm 360: shortest-path forest
+/// with topological ordering", CACM 12(11), 1969), with buckets of width Δ over a
+/// circular window of [`RING`] buckets, keys beyond the window in an overflow list, and
+/// the entries of the bucket being served in a binary heap, so that entries leave in
+/// exact key order (not only bucket order): the bucket index ⌊(k − k₀)/Δ⌋ is monotone in
+/// the key, so bucket order is key order, and the heap orders within a bucket. It needs
+/// monotone keys (no key below the last popped is pushed, up to
+/// rounding: such a key is raised to the last popped). Each entry is moved once into
+/// its bucket and once into the heap, which then holds about one bucket's entries.
+#[derive(Debug, Clone)]
+pub struct BucketQueue {
+    width: f64,
+    inv: f64,
+    origin: f64,
+    /// The bucket being served (its entries are in `near`).
+    cur: u64,
+    near: std::collections::BinaryHeap<Near>,
+    ring: Vec<Vec<Entry>>,
+    occupied: [u64; RING / 64],
+    /// Entries at or beyond bucket `cur + RING`, and the smallest bucket among them.
+    far: Vec<(u64, Entry)>,
+    far_min: u64,
+    last: f64,
+    len: usize,
+    started: bool,
 }
 
-impl RadixHeap {
-    /// An empty heap.
-    pub fn new() -> RadixHeap {
-        RadixHeap {
-            buckets: (0..BUCKETS).map(|_| Vec::new()).collect(),
-            occupied: [0; MASK_WORDS],
-            last: 0,
+/// Entries a served bucket's allocation may hold and still be kept for reuse.
+const KEEP: usize = 64;
+
+/// Buckets in the window (a power of two).
+pub const RING: usize = 16384;
+
+/// An entry of the served bucket, ordered for a min-heap on its key.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct Near(u64, u32);
+
+impl Ord for Near {
+    fn cmp(&self, o: &Self) -> std::cmp::Ordering {
+        o.0.cmp(&self.0)
+    }
+}
+
+impl PartialOrd for Near {
+    fn partial_cmp(&self, o: &Self) -> Option<std::cmp::Ordering> {
+        Some(self.cmp(o))
+    }
+}
+
+impl Default for BucketQueue {
+    fn default() -> Self {
+        BucketQueue::new(1.0)
+    }
+}
+
+impl BucketQueue {
+    /// An empty queue with buckets `width` wide (> 0, finite).
+    pub fn new(width: f64) -> BucketQueue {
+        let width = if width > 0.0 && width.is_finite() {
+            width
+        } else {
+            1.0
+        };
+        BucketQueue {
+            width,
+            inv: 1.0 / width,
+            origin: 0.0,
+            cur: 0,
+            near: Default::default(),
+            ring: (0..RING).map(|_| Vec::new()).collect(),
+            occupied: [0; RING / 64],
+            far: Vec::new(),
+            far_min: u64::MAX,
+            last: 0.0,
             len: 0,
+            started: false,
         }
+    }
+
+    /// Empties the queue and sets a new bucket width, keeping the allocations.
+    pub fn reset(&mut self, width: f64) {
+        let width = if width > 0.0 && width.is_finite() {
+            width
+        } else {
+            1.0
+        };
+        for (w, word) in self.occupied.iter_mut().enumerate() {
+            while *word != 0 {
+                let b = word.trailing_zeros() as usize;
+                *word &= *word - 1;
+                self.ring[64 * w + b].clear();
+            }
+        }
+        self.near.clear();
+        self.far.clear();
+        self.far_min = u64::MAX;
+        self.width = width;
+        self.inv = 1.0 / width;
+        self.cur = 0;
+        self.last = 0.0;
+        self.len = 0;
+        self.started = false;
     }
 
     /// Number of entries (including stale ones the caller skips).
@@ -94,58 +136,117 @@ impl RadixHeap {
         self.len == 0
     }
 
-    #[inline]
-    fn put(&mut self, b: usize, e: Entry) {
-        self.buckets[b].push(e);
-        if b > 0 {
-            self.occupied[(b - 1) / 64] |= 1 << ((b - 1) % 64);
-        }
-    }
-
-    /// Pushes `value` with priority `key` (≥ 0; raised to the last popped key).
+    /// Pushes `value` with priority `key` (raised to the last popped key).
     #[inline]
     pub fn push(&mut self, key: f64, value: u32) {
-        debug_assert!(key >= 0.0, "negative key {key}");
-        let k = key.max(0.0).to_bits().max(self.last);
-        self.put(bucket_of(k, self.last), entry(k, value));
+        let k = key.max(self.last);
+        if !self.started {
+            self.started = true;
+            self.origin = k;
+        }
+        let bits = k.to_bits();
+        // Through i64 (one instruction on x86-64, where f64 → u64 takes a dozen); a
+        // key a hair below the origin truncates to bucket 0.
+        let idx = (((k - self.origin) * self.inv) as i64).max(0) as u64;
         self.len += 1;
+        if idx <= self.cur {
+            self.near.push(Near(bits, value));
+        } else if idx - self.cur < RING as u64 {
+            let slot = idx as usize & (RING - 1);
+            self.ring[slot].push(entry(bits, value));
+            self.occupied[slot / 64] |= 1 << (slot % 64);
+        } else {
+            self.far.push((idx, entry(bits, value)));
+            self.far_min = self.far_min.min(idx);
+        }
     }
 
     /// Pops an entry with the smallest key.
+    #[inline]
     pub fn pop(&mut self) -> Option<(f64, u32)> {
-        if self.len == 0 {
-            return None;
-        }
-        if self.buckets[0].is_empty() {
-            // The lowest non-empty bucket (there is one: len > 0 and bucket 0 is empty).
-            let w = self.occupied.iter().position(|&m| m != 0)?;
-            let bit = self.occupied[w].trailing_zeros() as usize;
-            self.occupied[w] &= !(1 << bit);
-            let i = 1 + 64 * w + bit;
-            let mut moved = std::mem::take(&mut self.buckets[i]);
-            let min = moved.iter().map(key_of).min()?;
-            self.last = min;
-            // Every entry lands in a lower level (module doc), never back in bucket i.
-            for e in &moved {
-                self.put(bucket_of(key_of(e), min), *e);
+        loop {
+            if let Some(Near(k, v)) = self.near.pop() {
+                self.len -= 1;
+                self.last = f64::from_bits(k);
+                return Some((self.last, v));
             }
-            // Give the emptied bucket its allocation back for reuse.
-            moved.clear();
-            self.buckets[i] = moved;
+            if self.len == 0 {
+                return None;
+            }
+            self.advance();
         }
-        self.len -= 1;
-        let e = self.buckets[0].pop()?;
-        Some((f64::from_bits(key_of(&e)), e[2]))
     }
 
-    /// Empties the heap, keeping its allocations.
-    pub fn clear(&mut self) {
-        for b in &mut self.buckets {
-            b.clear();
+    /// Moves to the next non-empty bucket and fills the heap from it.
+    fn advance(&mut self) {
+        let next = self.next_slot().or_else(|| {
+            // The window is empty: move it to the overflow's first bucket.
+            self.cur = self.far_min - 1;
+            self.migrate();
+            self.next_slot()
+        });
+        let Some(d) = next else {
+            return;
+        };
+        self.cur += d;
+        let slot = self.cur as usize & (RING - 1);
+        self.occupied[slot / 64] &= !(1 << (slot % 64));
+        let mut entries = std::mem::take(&mut self.ring[slot]);
+        self.near
+            .extend(entries.iter().map(|e| Near(key_of(e), e[2])));
+        // A small allocation is kept for reuse, a large one dropped: kept, every bucket of
+        // the window would hold the capacity of its fullest moment.
+        if entries.capacity() <= KEEP {
+            entries.clear();
+            self.ring[slot] = entries;
         }
-        self.occupied = [0; MASK_WORDS];
-        self.last = 0;
-        self.len = 0;
+        self.migrate();
+    }
+
+    /// The distance (1..RING) from `cur` to the next occupied bucket of the window.
+    fn next_slot(&self) -> Option<u64> {
+        let start = (self.cur as usize + 1) & (RING - 1);
+        for i in 0..=RING / 64 {
+            let w = (start / 64 + i) % (RING / 64);
+            let mut word = self.occupied[w];
+            if i == 0 {
+                word &= !0u64 << (start % 64);
+            } else if i == RING / 64 {
+                word &= !(!0u64 << (start % 64));
+            }
+            if word != 0 {
+                let slot = 64 * w + word.trailing_zeros() as usize;
+                let d = (slot + RING - (self.cur as usize & (RING - 1))) & (RING - 1);
+                return Some(d as u64);
+            }
+        }
+        None
+    }
+
+    /// Moves the overflow entries that the window now covers into their buckets.
+    fn migrate(&mut self) {
+        if self.far_min >= self.cur.saturating_add(RING as u64) {
+            return;
+        }
+        let mut far_min = u64::MAX;
+        let mut i = 0;
+        while i < self.far.len() {
+            let (idx, e) = self.far[i];
+            if idx < self.cur.saturating_add(RING as u64) {
+                self.far.swap_remove(i);
+                if idx <= self.cur {
+                    self.near.push(Near(key_of(&e), e[2]));
+                } else {
+                    let slot = idx as usize & (RING - 1);
+                    self.ring[slot].push(e);
+                    self.occupied[slot / 64] |= 1 << (slot % 64);
+                }
+            } else {
+                far_min = far_min.min(idx);
+                i += 1;
+            }
+        }
+        self.far_min = far_min;
     }
 }
 
@@ -153,43 +254,83 @@ impl RadixHeap {
 mod tests {
     use super::*;
 
+    /// The queue behind an interface, for the test.
+    trait Queue {
+        fn push(&mut self, key: f64, value: u32);
+        fn pop(&mut self) -> Option<(f64, u32)>;
+        fn len(&self) -> usize;
+        fn is_empty(&self) -> bool;
+    }
+
+    impl Queue for BucketQueue {
+        fn push(&mut self, key: f64, value: u32) {
+            BucketQueue::push(self, key, value)
+        }
+        fn pop(&mut self) -> Option<(f64, u32)> {
+            BucketQueue::pop(self)
+        }
+        fn len(&self) -> usize {
+            BucketQueue::len(self)
+        }
+        fn is_empty(&self) -> bool {
+            BucketQueue::is_empty(self)
+        }
+    }
+
     /// Against std's BinaryHeap on a monotone random sequence of pushes and pops: keys
     /// spread widely from zero, and keys packed close together far from zero (as the
     /// planner's are: they then differ only in low mantissa digits, every level used).
+    fn pops_in_key_order(q: &mut impl Queue, base: f64, spread: f64) {
+        let mut rng = crate::terrain::synth::SplitMix64::new(5);
+        let mut reference = std::collections::BinaryHeap::new();
+        let mut floor = base;
+        let mut popped = 0;
+        for i in 0..20_000u32 {
+            let pushes = (rng.next_u64() % 3) as u32;
+            for j in 0..pushes {
+                // Now and then a key far ahead (beyond a bucket window).
+                let far = if rng.next_u64().is_multiple_of(50) {
+                    3000.0 * spread
+                } else {
+                    0.0
+                };
+                let key = floor + far + rng.next_f64() * spread;
+                q.push(key, i * 4 + j);
+                reference.push(std::cmp::Reverse((key.to_bits(), i * 4 + j)));
+            }
+            if rng.next_u64().is_multiple_of(2) {
+                let a = q.pop();
+                let b = reference
+                    .pop()
+                    .map(|std::cmp::Reverse((k, _))| f64::from_bits(k));
+                assert_eq!(a.map(|x| x.0), b);
+                if let Some((k, _)) = a {
+                    floor = k;
+                    popped += 1;
+                }
+            }
+        }
+        assert_eq!(q.len(), reference.len());
+        // Drain: the rest comes out in order too.
+        while let Some(std::cmp::Reverse((k, _))) = reference.pop() {
+            assert_eq!(q.pop().map(|x| x.0), Some(f64::from_bits(k)));
+        }
+        assert!(q.is_empty() && q.pop().is_none());
+        assert!(popped > 5_000, "{popped}");
+    }
+
+    /// Bucket widths from far below the key steps (most entries overflow the window) to
+    /// far above them (everything in one bucket), and a queue reused after a reset.
     #[test]
-    fn pops_in_key_order_like_a_binary_heap() {
+    fn bucket_queue_pops_in_key_order_like_a_binary_heap() {
         for (base, spread) in [(0.0, 10.0), (7.5e5, 0.01)] {
-            let mut rng = crate::terrain::synth::SplitMix64::new(5);
-            let mut radix = RadixHeap::new();
-            let mut reference = std::collections::BinaryHeap::new();
-            let mut floor = base;
-            let mut popped = 0;
-            for i in 0..20_000u32 {
-                let pushes = (rng.next_u64() % 3) as u32;
-                for j in 0..pushes {
-                    let key = floor + rng.next_f64() * spread;
-                    radix.push(key, i * 4 + j);
-                    reference.push(std::cmp::Reverse((key.to_bits(), i * 4 + j)));
-                }
-                if rng.next_u64().is_multiple_of(2) {
-                    let a = radix.pop();
-                    let b = reference
-                        .pop()
-                        .map(|std::cmp::Reverse((k, _))| f64::from_bits(k));
-                    assert_eq!(a.map(|x| x.0), b);
-                    if let Some((k, _)) = a {
-                        floor = k;
-                        popped += 1;
-                    }
-                }
+            for width in [spread * 1e-4, spread * 0.05, spread, spread * 1e4] {
+                let mut q = BucketQueue::new(width);
+                pops_in_key_order(&mut q, base, spread);
+                q.push(1.0, 1);
+                q.reset(width);
+                pops_in_key_order(&mut q, base, spread);
             }
-            assert_eq!(radix.len(), reference.len());
-            // Drain: the rest comes out in order too.
-            while let Some(std::cmp::Reverse((k, _))) = reference.pop() {
-                assert_eq!(radix.pop().map(|x| x.0), Some(f64::from_bits(k)));
-            }
-            assert!(radix.is_empty() && radix.pop().is_none());
-            assert!(popped > 5_000, "{popped}");
         }
     }
 }

@@ -24,7 +24,7 @@
 //! # Units
 //! Joules, seconds, metres.
 
-use crate::plan::cost::{Blocked as PlanBlocked, Step, StepEnergy, StepModel};
+use crate::plan::cost::{Blocked as PlanBlocked, Step, StepEnergy, StepModel, WheelBounds};
 use crate::vehicle::attitude::Attitude;
 use crate::vehicle::powertrain::SpeedLaw;
 use crate::vehicle::rover::Rover;
@@ -125,6 +125,7 @@ impl Firm {
 pub struct RoverStepModel<'a> {
     rover: &'a Rover,
     firm: Option<Firm>,
+    bounds: WheelBounds,
 }
 
 impl<'a> RoverStepModel<'a> {
@@ -133,6 +134,14 @@ impl<'a> RoverStepModel<'a> {
         RoverStepModel {
             rover,
             firm: Firm::of(rover),
+            bounds: WheelBounds {
+                weight_n: rover.weight_n(),
+                crr: rover.rolling_resistance,
+                eta: rover.best_drive_efficiency(),
+                rho: rover.regen_fraction,
+                hotel_w: rover.hotel_power_w,
+                v_max: rover.max_speed_m_s,
+            },
         }
     }
 
@@ -189,19 +198,16 @@ impl StepModel for RoverStepModel<'_> {
 
     #[inline]
     fn energy_lower_bound_j(&self, d_m: f64, dz_m: f64) -> f64 {
-        let r = self.rover;
-        let w = r.weight_n() * (r.rolling_resistance * d_m + dz_m);
-        let drive = if w > 0.0 {
-            w / r.best_drive_efficiency()
-        } else {
-            r.regen_fraction * w
-        };
-        drive + r.hotel_power_w * (d_m * d_m + dz_m * dz_m).sqrt() / r.max_speed_m_s
+        self.bounds.energy_j(d_m, dz_m)
     }
 
     #[inline]
     fn time_lower_bound_s(&self, d_m: f64, dz_m: f64) -> f64 {
-        (d_m * d_m + dz_m * dz_m).sqrt() / self.rover.max_speed_m_s
+        self.bounds.time_s(d_m, dz_m)
+    }
+
+    fn wheel_bounds(&self) -> Option<WheelBounds> {
+        Some(self.bounds)
     }
 
     fn regen_bound_j_per_m(&self) -> f64 {
