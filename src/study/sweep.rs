@@ -202,11 +202,22 @@ impl<'a> Study<'a> {
 
     /// The mission with `values` written at the keys of `varies`.
     pub fn mission(&self, varies: &[Vary], values: &[Value]) -> Prepared {
+        self.case(varies, values).0
+    }
+
+    /// The mission of a case and the part of it its route depends on (module doc; None
+    /// when the mission is not valid), from one writing of the values.
+    fn case(&self, varies: &[Vary], values: &[Value]) -> (Prepared, Option<String>) {
         let mut doc = self.doc.clone();
         for (v, x) in varies.iter().zip(values) {
-            set(&mut doc, &v.key, *x).map_err(|e| format!("{} = {}: {e}", v.key, x.text()))?;
+            if let Err(e) = set(&mut doc, &v.key, *x) {
+                return (Err(format!("{} = {}: {e}", v.key, x.text())), None);
+            }
         }
-        let text = toml::to_string(&doc).map_err(|e| e.to_string())?;
+        let text = match toml::to_string(&doc) {
+            Ok(t) => t,
+            Err(e) => return (Err(e.to_string()), None),
+        };
         let describe = || {
             varies
                 .iter()
@@ -215,7 +226,7 @@ impl<'a> Study<'a> {
                 .collect::<Vec<_>>()
                 .join(", ")
         };
-        crate::mission::check(&text, self.base, self.exists).map_err(|p| {
+        let mission = crate::mission::check(&text, self.base, self.exists).map_err(|p| {
             format!(
                 "with {}: {}",
                 describe(),
@@ -224,7 +235,12 @@ impl<'a> Study<'a> {
                     .collect::<Vec<_>>()
                     .join("; ")
             )
-        })
+        });
+        let pick = |k: &str| doc.get(k).map(|v| toml::to_string(v).unwrap_or_default());
+        let route = mission
+            .is_ok()
+            .then(|| format!("{:?}|{:?}", pick("route"), pick("rover")));
+        (mission, route)
     }
 
     /// The seasons a case runs.
@@ -302,31 +318,13 @@ impl<'a> Study<'a> {
         plan(m, &self.ground).map_err(|e| e.to_string())
     }
 
-    /// The part of a case's mission its route depends on (module doc).
-    fn route_key(m: &Prepared, doc_route: Option<String>) -> Option<String> {
-        m.as_ref().ok().and(doc_route)
-    }
-
-    fn route_text(&self, varies: &[Vary], values: &[Value]) -> Option<String> {
-        let mut doc = self.doc.clone();
-        for (v, x) in varies.iter().zip(values) {
-            set(&mut doc, &v.key, *x).ok()?;
-        }
-        let pick = |k: &str| doc.get(k).map(|v| toml::to_string(v).unwrap_or_default());
-        Some(format!("{:?}|{:?}", pick("route"), pick("rover")))
-    }
-
     /// Runs the cases `indices` of the grid of `varies`, in parallel, reporting each
     /// finished case to `progress`. Rows come back in the order of `indices`.
     pub fn run(&self, varies: &[Vary], indices: &[usize], progress: &dyn Progress) -> Vec<Case> {
         let values: Vec<Vec<Value>> = indices.iter().map(|&i| case_values(varies, i)).collect();
-        let missions: Vec<Prepared> = values.par_iter().map(|v| self.mission(varies, v)).collect();
+        let (missions, keys): (Vec<Prepared>, Vec<Option<String>>) =
+            values.par_iter().map(|v| self.case(varies, v)).unzip();
         // Plan each distinct route once.
-        let keys: Vec<Option<String>> = values
-            .iter()
-            .zip(&missions)
-            .map(|(v, m)| Self::route_key(m, self.route_text(varies, v)))
-            .collect();
         let mut first_of: HashMap<&str, usize> = HashMap::new();
         for (i, k) in keys.iter().enumerate() {
             if let Some(k) = k {
