@@ -245,13 +245,7 @@ impl Models {
     /// As [`Models::new`], with `weather_csv` the text of the mission's weather file
     /// (`sky = "csv"`; the caller reads it, the core reads no files).
     pub fn with_weather(m: &Mission, weather_csv: Option<&str>) -> Result<Models, Error> {
-        let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
-        let observer = Observer::new(
-            m.site.latitude_rad,
-            m.site.longitude_rad,
-            m.site.elevation_m,
-        )
-        .map_err(|e| stage(e.to_string()))?;
+        let observer = observer(m)?;
         let weather = match (&m.weather.sky, weather_csv) {
             (Sky::Csv { path }, Some(text)) => {
                 Some((path.clone(), parse_weather(m, path, text, &observer)?))
@@ -272,9 +266,30 @@ impl Models {
             Some(series) => Ambient::Series(series?),
             None => Ambient::Monthly(m.weather.climate.clone()),
         };
+        Models::build(m, observer, weather, ambient)
+    }
+
+    /// The models of `m`, a variant of the mission these models were made for (a case of
+    /// a trade study): battery, thermal node and site from `m`, the weather record (and
+    /// its air temperature) reused, so the weather file is parsed once per study.
+    pub fn for_variant(&self, m: &Mission) -> Result<Models, Error> {
+        let ambient = match (&self.weather, &self.ambient) {
+            (Some(_), Ambient::Series(s)) => Ambient::Series(s.clone()),
+            _ => Ambient::Monthly(m.weather.climate.clone()),
+        };
+        Models::build(m, observer(m)?, self.weather.clone(), ambient)
+    }
+
+    /// The pack and thermal node of `m` with the given site, weather and air temperature.
+    fn build(
+        m: &Mission,
+        observer: Observer,
+        weather: Option<(std::path::PathBuf, WeatherSeries)>,
+        ambient: Ambient,
+    ) -> Result<Models, Error> {
         Ok(Models {
-            pack: Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?,
-            thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?,
+            pack: Pack::new(&m.battery).map_err(|e| stage(m, e.to_string()))?,
+            thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(m, e.to_string()))?,
             ambient,
             observer,
             weather,
@@ -282,29 +297,19 @@ impl Models {
     }
 }
 
-impl Models {
-    /// The models of `m`, a variant of the mission these models were made for (a case of
-    /// a trade study): battery, thermal node and site from `m`, the weather record (and
-    /// its air temperature) reused, so the weather file is parsed once per study.
-    pub fn for_variant(&self, m: &Mission) -> Result<Models, Error> {
-        let stage = |e: String| Error::Usage(format!("{}: {e}", m.site.name));
-        let ambient = match (&self.weather, &self.ambient) {
-            (Some(_), Ambient::Series(s)) => Ambient::Series(s.clone()),
-            _ => Ambient::Monthly(m.weather.climate.clone()),
-        };
-        Ok(Models {
-            pack: Pack::new(&m.battery).map_err(|e| stage(e.to_string()))?,
-            thermal: ThermalNode::new(&m.thermal).map_err(|e| stage(e.to_string()))?,
-            ambient,
-            observer: Observer::new(
-                m.site.latitude_rad,
-                m.site.longitude_rad,
-                m.site.elevation_m,
-            )
-            .map_err(|e| stage(e.to_string()))?,
-            weather: self.weather.clone(),
-        })
-    }
+/// An error of the models of `m`, named by its site.
+fn stage(m: &Mission, e: String) -> Error {
+    Error::Usage(format!("{}: {e}", m.site.name))
+}
+
+/// The observer at `m`'s site.
+fn observer(m: &Mission) -> Result<Observer, Error> {
+    Observer::new(
+        m.site.latitude_rad,
+        m.site.longitude_rad,
+        m.site.elevation_m,
+    )
+    .map_err(|e| stage(m, e.to_string()))
 }
 
 /// Parses the weather file's text (naive times at the site's UTC offset).
