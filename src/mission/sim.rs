@@ -488,6 +488,9 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
     let mut day_window: std::collections::VecDeque<(f64, f64)> = Default::default();
     // The next scheduled hold still to finish.
     let mut next_hold = 0;
+    // The cell the rover was last in, and its shade.
+    let mut shade: (Option<(usize, usize)>, Option<SiteShade<'_>>) = (None, None);
+    let shade = &mut shade;
     let steps = (setup.policy.deadline_s / dt).ceil() as usize;
     for k in 0..steps {
         if run.arrival.is_some() && setup.policy.end == EndCondition::Arrival {
@@ -583,7 +586,18 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             roll_rad: heading_row.roll_rad,
         };
         let day = local_day(mid, setup.utc_offset_s) - day0;
-        let poa_w_m2 = poa(setup, &sun, &att, (here.col, here.row), mid, day);
+        let cell = (here.col, here.row);
+        if shade.0 != Some(cell) {
+            // The cell's shade (its sky-view factor) is computed once per cell visited,
+            // not once per step.
+            *shade = (
+                Some(cell),
+                setup
+                    .horizon
+                    .and_then(|h| SiteShade::new(h, cell.0, cell.1)),
+            );
+        }
+        let poa_w_m2 = poa(setup, &sun, &att, shade.1.as_ref(), mid, day);
         let gen_w = setup.panel.power_at_w(poa_w_m2, air_c, setup.sky.wind_m_s);
         // Loads.
         let hotel_w = if activity == Activity::Asleep {
@@ -784,17 +798,17 @@ fn drive(
     (energy, dt - left)
 }
 
-/// Plane-of-array irradiance on the panels at the rover's cell, W/m².
+/// Plane-of-array irradiance on the panels at the rover's cell (its `shade`), W/m².
 fn poa(
     setup: &SimSetup<'_>,
     sun: &crate::sun::position::SunPosition,
     att: &Attitude,
-    (col, row): (usize, usize),
+    shade: Option<&SiteShade<'_>>,
     t: DateTime<Utc>,
     day: i64,
 ) -> f64 {
     match sky_now(setup, sun, t, day) {
-        Some(sky) => poa_on(setup, &sky, att, col, row),
+        Some(sky) => poa_shaded(setup, &sky, att, shade),
         None => 0.0,
     }
 }
@@ -843,6 +857,17 @@ pub(crate) fn poa_on(
     col: usize,
     row: usize,
 ) -> f64 {
+    let shade = setup.horizon.and_then(|h| SiteShade::new(h, col, row));
+    poa_shaded(setup, sky, att, shade.as_ref())
+}
+
+/// [`poa_on`] with the cell's shade given (None: no horizon map, or off the map).
+fn poa_shaded(
+    setup: &SimSetup<'_>,
+    sky: &SkyNow,
+    att: &Attitude,
+    shade: Option<&SiteShade<'_>>,
+) -> f64 {
     let sun = &sky.sun;
     let Some(plane) = setup
         .mount
@@ -852,7 +877,7 @@ pub(crate) fn poa_on(
     };
     let s = &setup.sky;
     let mut p = plane_of_array(&plane, &sky.geom, &sky.irr, s.albedo, s.sky_model);
-    if let Some(shade) = setup.horizon.and_then(|h| SiteShade::new(h, col, row)) {
+    if let Some(shade) = shade {
         p = shade.apply(p, sun.apparent_elevation_rad(), sun.azimuth_rad);
     }
     p.total_w_m2()
