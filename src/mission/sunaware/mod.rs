@@ -577,9 +577,12 @@ fn plan_via<M: StepModel + ?Sized>(
         Err(SunAwareError::NoPlan { .. }) => return pass(false, deadline_s),
         Err(e) => return Err(e),
     };
-    let by_s = greedy.arrival_s;
+    // The greedy plan's own labels must pass: its arrival is the replay's (equal to the
+    // search's to 1e-6 s), and t + h sums the same driving time in another order.
+    let greedy_s = greedy.arrival_s;
+    let by_s = greedy_s + BOUND_SLACK_S;
     let (mut plan, other, is_greedy) = match pass(false, by_s) {
-        Ok(p) if p.arrival_s <= greedy.arrival_s => (p, greedy.stats, false),
+        Ok(p) if p.arrival_s <= greedy.arrival_s + ROUNDING_S => (p, greedy.stats, false),
         Ok(p) => (greedy, p.stats, true),
         // Only the dominance rule's ε or the label budget can leave the bounded fronts
         // without a plan as early as the greedy one: the greedy plan stands.
@@ -588,7 +591,7 @@ fn plan_via<M: StepModel + ?Sized>(
     };
     plan.stats.add(&other);
     plan.stats.complete &= other.complete;
-    plan.stats.greedy_bound_s = Some(by_s);
+    plan.stats.greedy_bound_s = Some(greedy_s);
     plan.stats.greedy_plan = is_greedy;
     Ok(plan)
 }
@@ -1389,6 +1392,14 @@ struct Lattice {
     w: usize,
 }
 
+/// Rounding allowance of times compared with a horizon, seconds: a time plus the bound h
+/// sums the same driving time in another order than the moves do (on a straight drive at
+/// full speed the two are equal but for rounding).
+const ROUNDING_S: f64 = 1e-6;
+/// How far past the greedy plan's arrival the bounded fronts may arrive, seconds: above
+/// the replay's tolerance of arrival times (1e-6 s) and [`ROUNDING_S`], so that the
+/// greedy plan's own labels are never cut.
+const BOUND_SLACK_S: f64 = 1e-3;
 /// Edge slots per node: 8 neighbours, then the goal.
 const SLOTS: usize = 9;
 const GOAL_SLOT: u8 = 8;
@@ -1740,7 +1751,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
     /// refused first: it could only lead to arrivals past the horizon, and it could only
     /// dominate labels no earlier than itself, which cannot arrive in time either.
     fn admit(&mut self, l: Label) {
-        if l.walk.t_s + self.h[l.node as usize] > self.horizon_s {
+        if l.walk.t_s + self.h[l.node as usize] > self.horizon_s + ROUNDING_S {
             self.stats.cut_horizon += 1;
             return;
         }
