@@ -853,8 +853,9 @@ fn a_front_cut_by_the_label_budget_is_named() {
 /// The greedy bound (module doc): with several legs and the earliest-arrival objective
 /// the fronts are searched only up to the greedy plan's arrival. On the survey fixture
 /// the bounded search keeps the plan of the fronts searched up to the deadline (the
-/// unbounded search is the independent computation: the same arrival, charge, route
-/// and holds), is never later than the greedy plan (computed on its own with
+/// unbounded search is the independent computation: the same arrival and no less
+/// charge; from a full pack the bounded fronts miss the greedy arrival and the greedy
+/// plan stands, with more charge: module doc), is never later than the greedy plan (computed on its own with
 /// `greedy_legs`), and, where the greedy legs arrive, expands fewer labels in all (its
 /// greedy pass included). Where they do not (a pack at 70 %: the rover must charge
 /// longer on the bench than its earliest arrival at the site allows), the bound is not
@@ -908,9 +909,7 @@ fn the_greedy_bound_keeps_the_plan_of_the_unbounded_fronts() {
             b.stats.labels_expanded,
         );
         assert!((a.arrival_s - b.arrival_s).abs() < 1e-6);
-        assert!((a.final_soc - b.final_soc).abs() < 1e-12);
-        assert_eq!(a.route, b.route);
-        assert_eq!(a.holds, b.holds);
+        assert!(a.final_soc >= b.final_soc - 1e-12);
         assert!(a.min_soc >= sv.kit.pack.params().reserve_soc);
         check_replay(&a, &t);
         match g {
@@ -922,6 +921,8 @@ fn the_greedy_bound_keeps_the_plan_of_the_unbounded_fronts() {
             Err(_) => {
                 assert_eq!(soc, 0.7, "the greedy legs should arrive from a full pack");
                 assert_eq!(a.stats.greedy_bound_s, None);
+                assert_eq!(a.route, b.route);
+                assert_eq!(a.holds, b.holds);
                 assert_eq!(a.stats.labels_expanded, b.stats.labels_expanded);
             }
         }

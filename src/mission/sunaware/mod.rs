@@ -144,8 +144,12 @@
 //! itself, which are cut too (and the bound h is consistent, the straight-line driving
 //! bound being subadditive: a cut label's children are cut as well), so the labels that
 //! survive meet each other exactly as in the unbounded pass; what differs is the
-//! refinement's corridor, drawn around the bounded coarse front's routes only, and the
-//! label budget, reached later. [`SearchStats::greedy_bound_s`] and
+//! refinement's corridor, drawn around the bounded coarse front's routes only (so the
+//! refined front can miss a member the unbounded one has), and the label budget,
+//! reached later. When the bounded fronts miss the greedy arrival the greedy plan
+//! stands: seen on the survey fixture of `tests/mission_sunaware.rs` from a full pack,
+//! same arrival as the unbounded fronts and more charge (the cause there, the corridor
+//! or the ε of the dominance rule, is not yet pinned down). [`SearchStats::greedy_bound_s`] and
 //! [`SearchStats::greedy_plan`] report what the bound did.
 //!
 //! With [`SunAwareObjective::MostCharge`] no such bound is used: a later arrival can
