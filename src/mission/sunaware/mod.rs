@@ -148,8 +148,11 @@
 //! refined front can miss a member the unbounded one has), and the label budget,
 //! reached later. When the bounded fronts miss the greedy arrival the greedy plan
 //! stands: seen on the survey fixture of `tests/mission_sunaware.rs` from a full pack,
-//! same arrival as the unbounded fronts and more charge (the cause there, the corridor
-//! or the ε of the dominance rule, is not yet pinned down). [`SearchStats::greedy_bound_s`] and
+//! same arrival as the unbounded fronts and more charge. There, with the refinement
+//! off, the bounded and the unbounded pass give the same fronts' members up to the
+//! bound and the same plan, as the argument says; with it on they differ, and widening
+//! the corridor by the greedy plan's route did not close the gap: the cause is not yet
+//! pinned down. [`SearchStats::greedy_bound_s`] and
 //! [`SearchStats::greedy_plan`] report what the bound did.
 //!
 //! With [`SunAwareObjective::MostCharge`] no such bound is used: a later arrival can
