@@ -2,7 +2,8 @@
 //! simulation with the same energy, it survives a shadowed valley where the fixed route
 //! is stranded under every policy tried, it agrees with the fixed route on open flat
 //! terrain, it goes through waypoints and sites in order with the payload runs (and still
-//! replays exactly), and it names the bound that bit (and the leg) when there is no plan.
+//! replays exactly), it names the bound that bit (and the leg) when there is no plan, and
+//! the greedy bound of the arrival fronts keeps the plan the unbounded fronts find.
 
 use chrono::{DateTime, NaiveDate, Utc};
 use sunward::battery::ambient::{Ambient, MonthlyClimate};
@@ -712,6 +713,9 @@ fn a_later_leg_starts_from_the_whole_arrival_front() {
     assert_eq!(*bound, Bound::Reserve);
     let plan =
         plan_sun_aware_via(&p, &template, &from, &visits, &to, start_time(), &settings).unwrap();
+    // The greedy legs had no plan, so the greedy bound was not used: the fronts were
+    // searched up to the deadline.
+    assert_eq!(plan.stats.greedy_bound_s, None);
     eprintln!(
         "front carry: arrival {:.2} h, final SOC {:.3}, {} front members, legs {:?}",
         plan.arrival_s / 3600.0,
@@ -844,4 +848,83 @@ fn a_front_cut_by_the_label_budget_is_named() {
         detail.contains("cut the arrival front of the leg 1 of 2, from start to site"),
         "{detail}"
     );
+}
+
+/// The greedy bound (module doc): with several legs and the earliest-arrival objective
+/// the fronts are searched only up to the greedy plan's arrival. On the survey fixture
+/// the bounded search keeps the plan of the fronts searched up to the deadline (the
+/// unbounded search is the independent computation: the same arrival and no less
+/// charge; from a full pack the bounded fronts miss the greedy arrival and the greedy
+/// plan stands, with more charge: module doc), is never later than the greedy plan (computed on its own with
+/// `greedy_legs`), and, where the greedy legs arrive, expands fewer labels in all (its
+/// greedy pass included). Where they do not (a pack at 70 %: the rover must charge
+/// longer on the bench than its earliest arrival at the site allows), the bound is not
+/// used and the fronts are searched up to the deadline, as the proof needs.
+#[test]
+fn the_greedy_bound_keeps_the_plan_of_the_unbounded_fronts() {
+    let sv = survey();
+    let model = RoverStepModel::new(&sv.kit.rover);
+    let p = planner(&sv.dem, &sv.flags, &model);
+    let h = sv.dem.height();
+    let (from, site, to) = (
+        at("start", 8, 12, h),
+        at("site", 40, 40, h),
+        at("goal", 120, 40, h),
+    );
+    let visits = [Visit {
+        point: site.clone(),
+        payload_s: Some(7200.0),
+    }];
+    let fixed = plan_route(&p, &[from.clone(), site.clone(), to.clone()]).unwrap();
+    let bounded = SunAwareSettings {
+        bucket_s: 1800.0,
+        ..SunAwareSettings::default()
+    };
+    let unbounded = SunAwareSettings {
+        greedy_bound: false,
+        ..bounded
+    };
+    let greedy = SunAwareSettings {
+        greedy_legs: true,
+        ..bounded
+    };
+    for soc in [0.7, 1.0] {
+        let mut t = setup(&fixed, &sv.kit, Some(&sv.horizons), policy(16.0));
+        t.initial_soc = soc;
+        let run =
+            |s: &SunAwareSettings| plan_sun_aware_via(&p, &t, &from, &visits, &to, start_time(), s);
+        let (g, a, b) = (run(&greedy), run(&bounded), run(&unbounded).unwrap());
+        let a = a.unwrap();
+        eprintln!(
+            "initial SOC {soc}: greedy {:?}; bounded {:.1} s, SOC {:.5}, {} expanded, bound \
+             {:?}, greedy plan {}; unbounded {:.1} s, SOC {:.5}, {} expanded",
+            g.as_ref().map(|x| (x.arrival_s, x.final_soc)).ok(),
+            a.arrival_s,
+            a.final_soc,
+            a.stats.labels_expanded,
+            a.stats.greedy_bound_s,
+            a.stats.greedy_plan,
+            b.arrival_s,
+            b.final_soc,
+            b.stats.labels_expanded,
+        );
+        assert!((a.arrival_s - b.arrival_s).abs() < 1e-6);
+        assert!(a.final_soc >= b.final_soc - 1e-12);
+        assert!(a.min_soc >= sv.kit.pack.params().reserve_soc);
+        check_replay(&a, &t);
+        match g {
+            Ok(g) => {
+                assert_eq!(a.stats.greedy_bound_s, Some(g.arrival_s));
+                assert!(a.arrival_s <= g.arrival_s + 1e-6);
+                assert!(a.stats.labels_expanded < b.stats.labels_expanded);
+            }
+            Err(_) => {
+                assert_eq!(soc, 0.7, "the greedy legs should arrive from a full pack");
+                assert_eq!(a.stats.greedy_bound_s, None);
+                assert_eq!(a.route, b.route);
+                assert_eq!(a.holds, b.holds);
+                assert_eq!(a.stats.labels_expanded, b.stats.labels_expanded);
+            }
+        }
+    }
 }

@@ -243,7 +243,9 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let (results, cmp) = match a.planner {
         PlannerKind::Fixed => (results, None),
         PlannerKind::SunAware => {
-            let (r, c) = sun_aware(a, &m, &planner, &setup, &seasons, &visits, results)?;
+            let (r, c) = sun_aware(
+                a, &m, &planner, &setup, &seasons, &visits, results, progress,
+            )?;
             (r, Some(c))
         }
     };
@@ -309,6 +311,7 @@ struct Comparison {
 /// `--planner sun-aware`: plans and replays every season, writes each season's route,
 /// prints the fixed route's verdicts beside the sun-aware ones; returns the sun-aware
 /// results (a season without a plan keeps the fixed route's) and the comparison.
+#[allow(clippy::too_many_arguments)]
 fn sun_aware(
     a: &RunArgs,
     m: &Mission,
@@ -317,9 +320,12 @@ fn sun_aware(
     seasons: &[Season],
     visits: &[sunward::mission::sunaware::Visit],
     fixed: Vec<SeasonResult>,
+    progress: &dyn sunward::progress::Progress,
 ) -> Result<(Vec<SeasonResult>, Comparison), Error> {
     let out = a.out.as_path();
-    use sunward::mission::sunaware::{run_seasons_sun_aware, SunAwareObjective, SunAwareSettings};
+    use sunward::mission::sunaware::{
+        run_seasons_sun_aware_with, SunAwareObjective, SunAwareSettings,
+    };
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
     let settings = SunAwareSettings {
         objective: match a.sun_aware_objective {
@@ -328,8 +334,10 @@ fn sun_aware(
         },
         ..SunAwareSettings::default()
     };
-    let planned = run_seasons_sun_aware(planner, setup, seasons, start, visits, goal, &settings)
-        .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
+    let planned = run_seasons_sun_aware_with(
+        planner, setup, seasons, start, visits, goal, &settings, progress,
+    )
+    .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
     crate::say!(
         "{}: fixed route and sun-aware plan side by side",
         m.site.name

@@ -127,6 +127,44 @@
 //! but since they share one search, the next leg costs one search with many start
 //! labels, not one search per member. A single leg is searched as before.
 //!
+//! **The greedy bound** (`greedy_bound`, on by default; [`SunAwareObjective::EarliestArrival`]
+//! with several legs). First the greedy pass: each leg keeps only its own earliest
+//! arrival and the next leg starts from that one state. If it arrives, at T_g, a plan
+//! exists (it is replayed like any other), so no "no plan" proof is needed, and no
+//! label that cannot reach the goal by T_g can lead to an earlier plan: a label of leg
+//! k at time t needs at least h (the bound of the driving time to the leg's end, the
+//! one that orders the queue) plus the later legs' lower bound (above) to arrive. The
+//! front pass then runs with T_g in place of the deadline in every leg's horizon, and
+//! its plan is kept unless the greedy plan arrives earlier, or the bounded fronts find
+//! none (only the dominance rule's ε, which can prune a label for a no-earlier one with
+//! less charge, or the label budget can make them miss the greedy arrival); then the
+//! greedy plan stands. If the greedy pass has no plan, the fronts are searched up to the
+//! deadline as above, for the proof. The bounded pass keeps the plan of the unbounded
+//! one: a label cut at T_g can dominate only labels of the same node no earlier than
+//! itself, which are cut too (and the bound h is consistent, the straight-line driving
+//! bound being subadditive: a cut label's children are cut as well), so the labels that
+//! survive meet each other exactly as in the unbounded pass; what differs is the
+//! refinement's corridor, drawn around the bounded coarse front's routes only (so the
+//! refined front can miss a member the unbounded one has), and the label budget,
+//! reached later. When the bounded fronts miss the greedy arrival the greedy plan
+//! stands: seen on the survey fixture of `tests/mission_sunaware.rs` from a full pack,
+//! same arrival as the unbounded fronts and more charge. There, with the refinement
+//! off, the bounded and the unbounded pass give the same fronts' members up to the
+//! bound and the same plan, as the argument says; with it on they differ, and widening
+//! the corridor by the greedy plan's route did not close the gap: the cause is not yet
+//! pinned down. [`SearchStats::greedy_bound_s`] and
+//! [`SearchStats::greedy_plan`] report what the bound did.
+//!
+//! With [`SunAwareObjective::MostCharge`] no such bound is used: a later arrival can
+//! carry more charge, so the greedy plan's arrival bounds nothing but the deadline
+//! does. (Only a greedy arrival with a full pack would bound the search, by the
+//! full-pack rule above; the greedy pass would cost a full most-charge search per leg
+//! to find that out, and is not run.)
+//!
+//! In every search a label is refused when its time plus h passes the leg's horizon
+//! (not only a move whose start time does): such a label could only arrive too late,
+//! and by the argument above its absence changes nothing for the others.
+//!
 //! The plan comes back on the fine grid (the edges' fine paths joined) with its holds
 //! and stops, and [`SunAwarePlan::replay_setup`] gives the simulation setup that replays
 //! it: the ordinary [`simulate`] with [`Hold`]s and [`Stop`]s reproduces the search's
@@ -142,7 +180,9 @@
 //!
 //! # Limits
 //! Exact up to the dominance rule and the lattice, across legs as within one (above);
-//! legs before the last cost a full search each; a site in the goal's cell is refused (the run ends on
+//! legs before the last cost a full search each up to the deadline when the greedy
+//! legs find no plan (and with the most-charge objective), up to the greedy arrival
+//! otherwise; a site in the goal's cell is refused (the run ends on
 //! arrival, before any payload run there; [`check_visits`]); the lattice uses the 8 neighbours (not
 //! the knight moves of 16-connectivity); the replay policy drives whenever the schedule
 //! says (its state-of-charge thresholds are set to zero: the plan itself keeps the
@@ -206,6 +246,11 @@ pub struct SunAwareSettings {
     /// (the next leg starts from that one state) instead of its arrival front.
     #[doc(hidden)]
     pub greedy_legs: bool,
+    /// With several legs and [`SunAwareObjective::EarliestArrival`]: plan greedily first
+    /// and, when that plan arrives, search the arrival fronts only up to its arrival
+    /// (module doc, "The greedy bound"). Off: the fronts are searched up to the deadline
+    /// (the same plan, slower; for tests and measurements).
+    pub greedy_bound: bool,
 }
 
 impl Default for SunAwareSettings {
@@ -223,6 +268,7 @@ impl Default for SunAwareSettings {
             objective: SunAwareObjective::EarliestArrival,
             refine: true,
             greedy_legs: false,
+            greedy_bound: true,
         }
     }
 }
@@ -254,6 +300,12 @@ pub struct SearchStats {
     pub refine_nodes: usize,
     /// Whether the plan comes from the refining search.
     pub refined: bool,
+    /// The greedy plan's arrival (seconds after the start) that bounded the search of
+    /// the arrival fronts, when it did (module doc, "The greedy bound").
+    pub greedy_bound_s: Option<f64>,
+    /// Whether the plan is the greedy plan itself (the bounded fronts found none
+    /// better).
+    pub greedy_plan: bool,
 }
 
 impl SearchStats {
@@ -454,6 +506,42 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
     t0: DateTime<Utc>,
     settings: &SunAwareSettings,
 ) -> Result<SunAwarePlan, SunAwareError> {
+    plan_via(planner, setup, start, visits, goal, t0, settings, &|_| {})
+}
+
+/// How many leg searches [`plan_sun_aware_via`] reports for one season with `visits`
+/// (the units of the progress of [`run_seasons_sun_aware_with`]): one per leg, twice
+/// when the greedy bound applies (the greedy pass, then the fronts).
+pub fn leg_searches(visits: &[Visit], settings: &SunAwareSettings) -> u64 {
+    let n = visits.len() as u64 + 1;
+    if greedy_bound_applies(n as usize, settings) {
+        2 * n
+    } else {
+        n
+    }
+}
+
+/// Whether the greedy bound is used (module doc, "The greedy bound").
+fn greedy_bound_applies(legs: usize, s: &SunAwareSettings) -> bool {
+    legs > 1
+        && s.greedy_bound
+        && !s.greedy_legs
+        && s.objective == SunAwareObjective::EarliestArrival
+}
+
+/// [`plan_sun_aware_via`], calling `tick(k)` when k more leg searches of the
+/// [`leg_searches`] are done.
+#[allow(clippy::too_many_arguments)]
+fn plan_via<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    setup: &SimSetup<'_>,
+    start: &RoutePoint,
+    visits: &[Visit],
+    goal: &RoutePoint,
+    t0: DateTime<Utc>,
+    settings: &SunAwareSettings,
+    tick: &(dyn Fn(u64) + Sync),
+) -> Result<SunAwarePlan, SunAwareError> {
     check_settings(planner, setup, settings)?;
     let cells = check_visits(planner, start, visits, goal)?;
     let clock = Clock::new(setup, t0)?;
@@ -466,124 +554,209 @@ pub fn plan_sun_aware_via<M: StepModel + ?Sized>(
     names.extend(visits.iter().map(|v| v.point.label.as_str()));
     names.push(goal.label.as_str());
     let n = cells.len() - 1;
-    let rest = rest_lower_bounds(planner, &cells, visits);
-    let mut starts = vec![LegStart {
-        walk: walker.start()?,
-        att: Attitude::default(),
-    }];
-    let mut fronts: Vec<Vec<LegPlan>> = Vec::new();
-    let mut stats = SearchStats {
-        complete: true,
-        ..SearchStats::default()
+    let legs = Legs {
+        planner,
+        walker: &walker,
+        names: &names,
+        visits,
+        rest: rest_lower_bounds(planner, &cells, visits),
+        cells: &cells,
+        settings,
     };
-    // The first leg whose arrival front the label budget cut.
-    let mut cut: Option<usize> = None;
-    for k in 0..n {
-        let end = match visits.get(k) {
-            None => LegEnd::Arrive,
-            Some(v) => v.payload_s.map_or(LegEnd::Pass, LegEnd::Visit),
+    let deadline_s = clock.horizon_s();
+    // Each pass reports its legs, the skipped ones too when it ends early.
+    let pass = |greedy: bool, by_s: f64| {
+        let done = std::sync::atomic::AtomicU64::new(0);
+        let r = legs.search(greedy, by_s, &|| {
+            done.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+            tick(1);
+        });
+        tick(n as u64 - done.load(std::sync::atomic::Ordering::Relaxed));
+        r
+    };
+    if !greedy_bound_applies(n, settings) {
+        return pass(settings.greedy_legs, deadline_s);
+    }
+    // The greedy bound: a greedy plan proves a plan exists and bounds the earliest
+    // arrival; without one, the full search is needed for the proof.
+    let greedy = match pass(true, deadline_s) {
+        Ok(g) => g,
+        Err(SunAwareError::NoPlan { .. }) => return pass(false, deadline_s),
+        Err(e) => return Err(e),
+    };
+    // The greedy plan's own labels must pass: its arrival is the replay's (equal to the
+    // search's to 1e-6 s), and t + h sums the same driving time in another order.
+    let greedy_s = greedy.arrival_s;
+    let by_s = greedy_s + BOUND_SLACK_S;
+    let (mut plan, other, is_greedy) = match pass(false, by_s) {
+        Ok(p) if p.arrival_s <= greedy.arrival_s + ROUNDING_S => (p, greedy.stats, false),
+        Ok(p) => (greedy, p.stats, true),
+        // Only the dominance rule's ε or the label budget can leave the bounded fronts
+        // without a plan as early as the greedy one: the greedy plan stands.
+        Err(SunAwareError::NoPlan { stats, .. }) => (greedy, *stats, true),
+        Err(e) => return Err(e),
+    };
+    plan.stats.add(&other);
+    plan.stats.complete &= other.complete;
+    plan.stats.greedy_bound_s = Some(greedy_s);
+    plan.stats.greedy_plan = is_greedy;
+    Ok(plan)
+}
+
+/// What every pass over the legs shares.
+struct Legs<'a, 'p, 'w, 's, 'x, M: StepModel + ?Sized> {
+    planner: &'a Planner<'p, M>,
+    walker: &'a Walker<'w, 's>,
+    names: &'a [&'x str],
+    visits: &'a [Visit],
+    /// Per leg, the lower bound of the later legs' time ([`rest_lower_bounds`]).
+    rest: Vec<f64>,
+    cells: &'a [usize],
+    settings: &'a SunAwareSettings,
+}
+
+impl<M: StepModel + ?Sized> Legs<'_, '_, '_, '_, '_, M> {
+    /// One pass over the legs: each leg before the last keeps its arrival front, or
+    /// with `greedy` its best arrival; no label is kept that could not arrive at the
+    /// goal by `by_s` (seconds after the start: the deadline, or the greedy bound).
+    /// `leg_done` is called after each leg.
+    fn search(
+        &self,
+        greedy: bool,
+        by_s: f64,
+        leg_done: &dyn Fn(),
+    ) -> Result<SunAwarePlan, SunAwareError> {
+        let Legs {
+            planner,
+            walker,
+            names,
+            visits,
+            cells,
+            settings,
+            ..
+        } = *self;
+        let rest = &self.rest;
+        let n = cells.len() - 1;
+        let arrive_by_s = by_s.min(walker.clock.horizon_s());
+        let mut starts = vec![LegStart {
+            walk: walker.start()?,
+            att: Attitude::default(),
+        }];
+        let mut fronts: Vec<Vec<LegPlan>> = Vec::new();
+        let mut stats = SearchStats {
+            complete: true,
+            ..SearchStats::default()
         };
-        let want = if k + 1 == n || settings.greedy_legs {
-            Want::Best
-        } else {
-            Want::Front
-        };
-        let leg_name =
-            (n > 1).then(|| format!("{} of {n}, from {} to {}", k + 1, names[k], names[k + 1]));
-        let name = |e: SunAwareError| match e {
-            SunAwareError::NoPlan {
-                bound,
-                detail,
-                stats,
-                ..
-            } => {
-                let (bound, detail) = match cut {
-                    Some(j) => (
-                        Bound::LabelBudget,
-                        format!(
-                            "no plan from the {} arrivals carried into it ({detail}); but the \
-                             label budget of {} labels cut the arrival front of the leg {} \
-                             of {n}, from {} to {}, so an arrival it did not reach may still \
-                             lead to a plan: raise the budget, use larger blocks or longer \
-                             buckets",
-                            starts.len(),
-                            settings.max_labels,
-                            j + 1,
-                            names[j],
-                            names[j + 1]
-                        ),
-                    ),
-                    None => (bound, detail),
-                };
+        // The first leg whose arrival front the label budget cut.
+        let mut cut: Option<usize> = None;
+        for k in 0..n {
+            let end = match visits.get(k) {
+                None => LegEnd::Arrive,
+                Some(v) => v.payload_s.map_or(LegEnd::Pass, LegEnd::Visit),
+            };
+            let want = if k + 1 == n || greedy {
+                Want::Best
+            } else {
+                Want::Front
+            };
+            let leg_name =
+                (n > 1).then(|| format!("{} of {n}, from {} to {}", k + 1, names[k], names[k + 1]));
+            let name = |e: SunAwareError| match e {
                 SunAwareError::NoPlan {
-                    leg: leg_name.clone(),
                     bound,
                     detail,
                     stats,
-                }
-            }
-            e => e,
-        };
-        let horizon_s = clock.horizon_s() - rest[k];
-        let front = if cells[k + 1] == cells[k] {
-            in_place(
-                &walker,
-                planner.dem.width(),
-                cells[k],
-                &starts,
-                end,
-                want,
-                horizon_s,
-                settings,
-                names[k + 1],
-            )
-            .map_err(|e| {
-                name(match e {
+                    ..
+                } => {
+                    let (bound, detail) = match cut {
+                        Some(j) => (
+                            Bound::LabelBudget,
+                            format!(
+                                "no plan from the {} arrivals carried into it ({detail}); but the \
+                                 label budget of {} labels cut the arrival front of the leg {} \
+                                 of {n}, from {} to {}, so an arrival it did not reach may still \
+                                 lead to a plan: raise the budget, use larger blocks or longer \
+                                 buckets",
+                                starts.len(),
+                                settings.max_labels,
+                                j + 1,
+                                names[j],
+                                names[j + 1]
+                            ),
+                        ),
+                        None => (bound, detail),
+                    };
                     SunAwareError::NoPlan {
-                        leg, bound, detail, ..
-                    } => SunAwareError::NoPlan {
-                        leg,
+                        leg: leg_name.clone(),
                         bound,
                         detail,
-                        stats: Box::new(stats.clone()),
-                    },
-                    e => e,
+                        stats,
+                    }
+                }
+                e => e,
+            };
+            let horizon_s = arrive_by_s - rest[k];
+            let front = if cells[k + 1] == cells[k] {
+                in_place(
+                    walker,
+                    planner.dem.width(),
+                    cells[k],
+                    &starts,
+                    end,
+                    want,
+                    horizon_s,
+                    settings,
+                    names[k + 1],
+                )
+                .map_err(|e| {
+                    name(match e {
+                        SunAwareError::NoPlan {
+                            leg, bound, detail, ..
+                        } => SunAwareError::NoPlan {
+                            leg,
+                            bound,
+                            detail,
+                            stats: Box::new(stats.clone()),
+                        },
+                        e => e,
+                    })
+                })?
+            } else {
+                plan_leg(
+                    planner,
+                    walker,
+                    cells[k],
+                    &starts,
+                    cells[k + 1],
+                    end,
+                    want,
+                    horizon_s,
+                    settings,
+                )
+                .map_err(name)?
+            };
+            stats.nodes = stats.nodes.max(front.stats.nodes);
+            stats.refine_nodes += front.stats.refine_nodes;
+            stats.refined |= front.stats.refined;
+            stats.label_bytes = stats.label_bytes.max(front.stats.label_bytes);
+            stats.add(&front.stats);
+            stats.complete &= front.complete;
+            if !front.complete && want == Want::Front && cut.is_none() {
+                cut = Some(k);
+            }
+            starts = front
+                .members
+                .iter()
+                .map(|m| LegStart {
+                    walk: m.end,
+                    att: m.end_att,
                 })
-            })?
-        } else {
-            plan_leg(
-                planner,
-                &walker,
-                cells[k],
-                &starts,
-                cells[k + 1],
-                end,
-                want,
-                horizon_s,
-                settings,
-            )
-            .map_err(name)?
-        };
-        stats.nodes = stats.nodes.max(front.stats.nodes);
-        stats.refine_nodes += front.stats.refine_nodes;
-        stats.refined |= front.stats.refined;
-        stats.label_bytes = stats.label_bytes.max(front.stats.label_bytes);
-        stats.add(&front.stats);
-        stats.complete &= front.complete;
-        if !front.complete && want == Want::Front && cut.is_none() {
-            cut = Some(k);
+                .collect();
+            fronts.push(front.members);
+            leg_done();
         }
-        starts = front
-            .members
-            .iter()
-            .map(|m| LegStart {
-                walk: m.end,
-                att: m.end_att,
-            })
-            .collect();
-        fronts.push(front.members);
+        join_legs(planner, walker, names, visits, cells, fronts, stats)
     }
-    join_legs(planner, &walker, &names, visits, &cells, fronts, stats)
 }
 
 /// Joins the legs of the plan: the final leg's plan traced back through the origins to
@@ -1018,19 +1191,57 @@ pub fn run_seasons_sun_aware<M: StepModel + ?Sized>(
     goal: &RoutePoint,
     settings: &SunAwareSettings,
 ) -> Result<Vec<SunAwareSeason>, SimError> {
+    run_seasons_sun_aware_with(
+        planner,
+        template,
+        seasons,
+        start,
+        visits,
+        goal,
+        settings,
+        &crate::progress::Silent,
+    )
+}
+
+/// [`run_seasons_sun_aware`], reporting to `progress` the leg searches done over all
+/// seasons (the task "sun-aware search", [`leg_searches`] per season).
+#[allow(clippy::too_many_arguments)]
+pub fn run_seasons_sun_aware_with<M: StepModel + ?Sized>(
+    planner: &Planner<'_, M>,
+    template: &SimSetup<'_>,
+    seasons: &[Season],
+    start: &RoutePoint,
+    visits: &[Visit],
+    goal: &RoutePoint,
+    settings: &SunAwareSettings,
+    progress: &dyn crate::progress::Progress,
+) -> Result<Vec<SunAwareSeason>, SimError> {
     use rayon::prelude::*;
-    seasons
+    let total = leg_searches(visits, settings) * seasons.len() as u64;
+    progress.start("sun-aware search (legs)", total);
+    // Under the lock, so that the counts reported stay monotone.
+    let done = std::sync::Mutex::new(0u64);
+    let tick = |k: u64| {
+        if k > 0 {
+            let mut d = done.lock().unwrap_or_else(|e| e.into_inner());
+            *d += k;
+            progress.update(*d);
+        }
+    };
+    let out = seasons
         .par_iter()
         .map(|season| {
             let t0 = season_start(season.date, template.utc_offset_s, template.start_local_h);
-            let plan = plan_sun_aware_via(planner, template, start, visits, goal, t0, settings);
+            let plan = plan_via(planner, template, start, visits, goal, t0, settings, &tick);
             let result = match &plan {
                 Ok(p) => season_result(&p.replay_setup(template), season, t0)?,
                 Err(_) => season_result(template, season, t0)?,
             };
             Ok(SunAwareSeason { plan, result })
         })
-        .collect()
+        .collect();
+    progress.finish();
+    out
 }
 
 /// Simulates `setup` for `season` from `t0` with its verdict and daily budgets.
@@ -1188,6 +1399,14 @@ struct Lattice {
     w: usize,
 }
 
+/// Rounding allowance of times compared with a horizon, seconds: a time plus the bound h
+/// sums the same driving time in another order than the moves do (on a straight drive at
+/// full speed the two are equal but for rounding).
+const ROUNDING_S: f64 = 1e-6;
+/// How far past the greedy plan's arrival the bounded fronts may arrive, seconds: above
+/// the replay's tolerance of arrival times (1e-6 s) and [`ROUNDING_S`], so that the
+/// greedy plan's own labels are never cut.
+const BOUND_SLACK_S: f64 = 1e-3;
 /// Edge slots per node: 8 neighbours, then the goal.
 const SLOTS: usize = 9;
 const GOAL_SLOT: u8 = 8;
@@ -1534,8 +1753,15 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
     }
 
     /// Admits `l` into the front of its (node, bucket) unless a label there dominates
-    /// it; removes the labels it dominates.
+    /// it; removes the labels it dominates. A label that cannot reach the leg's end
+    /// before the horizon (its time plus the lower bound of the driving time left) is
+    /// refused first: it could only lead to arrivals past the horizon, and it could only
+    /// dominate labels no earlier than itself, which cannot arrive in time either.
     fn admit(&mut self, l: Label) {
+        if l.walk.t_s + self.h[l.node as usize] > self.horizon_s + ROUNDING_S {
+            self.stats.cut_horizon += 1;
+            return;
+        }
         let b = ((l.walk.t_s / self.settings.bucket_s) as usize).min(self.buckets - 1);
         let key = l.node as usize * self.buckets + b;
         let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
