@@ -51,8 +51,7 @@
 //! zero-cost steps, which a vehicle with rolling and hotel losses does not have), or no
 //! route exist, the one-way search runs instead and gives the route or its explanation.
 
-use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
-use std::sync::{Barrier, Mutex};
+use std::sync::{Barrier, Mutex, RwLock};
 
 use crate::plan::astar::{
     dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
@@ -73,18 +72,23 @@ pub const MIN_CELLS: usize = 1 << 20;
 /// The arrays of a bidirectional search (kept in a [`Workspace`] for reuse).
 #[derive(Debug, Default)]
 pub struct BiArrays {
-    g: [Vec<AtomicU64>; 2],
+    g: [Vec<u64>; 2],
     heap: [BucketQueue; 2],
 }
 
+/// Cost words are stored XOR the bits of +∞, so that zeroed memory (which the allocator
+/// hands out as untouched pages) reads as "not labelled" and only blocked cells need
+/// writing before a search.
+const UNLABELLED: u64 = 0x7ff0_0000_0000_0000;
+
 #[inline]
-fn ld(g: &[AtomicU64], i: usize) -> f64 {
-    f64::from_bits(g[i].load(Relaxed))
+fn ld(g: &[u64], i: usize) -> f64 {
+    f64::from_bits(g[i] ^ UNLABELLED)
 }
 
 #[inline]
-fn st(g: &[AtomicU64], i: usize, v: f64) {
-    g[i].store(v.to_bits(), Relaxed)
+fn st(g: &mut [u64], i: usize, v: f64) {
+    g[i] = v.to_bits() ^ UNLABELLED;
 }
 
 /// (sum, cell) ordered by sum, then by cell.
@@ -151,7 +155,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
     }
 
     /// Settles the queued cells with keys up to the side's threshold (`REV`: backward).
-    fn advance<const REV: bool>(&self, g: &[AtomicU64], side: &mut Side<'_>) {
+    fn advance<const REV: bool>(&self, g: &mut [u64], side: &mut Side<'_>) {
         loop {
             let Some((key, x)) = side.pending.take().or_else(|| side.heap.pop()) else {
                 side.exhausted = true;
@@ -182,12 +186,11 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
     #[inline]
     fn relax<const REV: bool, const INTERIOR: bool>(
         &self,
-        g: &[AtomicU64],
+        g: &mut [u64],
         side: &mut Side<'_>,
         at: At,
         gu: f64,
     ) {
-        let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
         for di in &self.table[..self.dirs] {
             let (from, to, col, row) = if REV {
                 let (col, row) = (at.col - di.dc, at.row - di.dr);
@@ -220,6 +223,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             {
                 continue;
             }
+            let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
             let Some(c) = self
                 .p
                 .reduced::<INTERIOR>(from, di, to, &self.tan, self.k, flank_block)
@@ -238,7 +242,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
     }
 
     /// The best (sum, cell) over this round's labelled cells of a side.
-    fn check(&self, own: &[AtomicU64], other: &[AtomicU64], changed: &mut Vec<u32>) -> (f64, u32) {
+    fn check(&self, own: &[u64], other: &[u64], changed: &mut Vec<u32>) -> (f64, u32) {
         let mut best = (f64::INFINITY, u32::MAX);
         for &x in changed.iter() {
             let (a, b) = (ld(own, x as usize), ld(other, x as usize));
@@ -253,12 +257,13 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         best
     }
 
-    /// One side's rounds until the stopping rule holds; returns μ and its cell.
-    #[allow(clippy::too_many_arguments)]
+    /// One side's rounds until the stopping rule holds; returns μ and its cell. Each
+    /// side writes its own cost array only while it advances, and both read both only
+    /// while they check, between the barriers (the locks make the phases explicit).
     fn rounds<const REV: bool>(
         &self,
         me: usize,
-        g: &[&[AtomicU64]; 2],
+        g: &[RwLock<Vec<u64>>; 2],
         side: &mut Side<'_>,
         barrier: &Barrier,
         reports: &Mutex<[Report; 2]>,
@@ -266,9 +271,16 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         let mut mu = (f64::INFINITY, u32::MAX);
         loop {
             let before = side.expanded;
-            self.advance::<REV>(g[me], side);
+            {
+                let mut own = g[me].write().unwrap_or_else(|e| e.into_inner());
+                self.advance::<REV>(&mut own, side);
+            }
             barrier.wait();
-            let best = self.check(g[me], g[1 - me], &mut side.changed);
+            let best = {
+                let own = g[me].read().unwrap_or_else(|e| e.into_inner());
+                let other = g[1 - me].read().unwrap_or_else(|e| e.into_inner());
+                self.check(&own, &other, &mut side.changed)
+            };
             let report = Report {
                 best,
                 top: side.top(),
@@ -293,7 +305,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
 
     /// Traces the route from the meeting cell `m` back to the start (forward labels) or
     /// on to the goal (backward labels); None if a cell has no matching neighbour.
-    fn trace<const REV: bool>(&self, g: &[AtomicU64], m: usize, end: usize) -> Option<Vec<usize>> {
+    fn trace<const REV: bool>(&self, g: &[u64], m: usize, end: usize) -> Option<Vec<usize>> {
         let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
         let mut cells = vec![m];
         let mut x = m;
@@ -394,38 +406,37 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             round: (n as u64 / 64).clamp(8, ROUND_CELLS),
             wheel: self.model.wheel_bounds(),
         };
-        let [gf, gb] = &mut bi.g;
-        let init = |g: &mut Vec<AtomicU64>| {
-            let cell = |f: &u8| {
-                AtomicU64::new(
-                    if *f == FREE {
-                        f64::INFINITY
-                    } else {
-                        f64::NEG_INFINITY
-                    }
-                    .to_bits(),
-                )
-            };
+        // Zeroed (untouched) pages read as unlabelled; only blocked cells are written.
+        let init = |g: &mut Vec<u64>| {
             if g.len() == n {
-                for (a, f) in g.iter().zip(&self.flags.flags) {
-                    a.store(cell(f).into_inner(), Relaxed);
-                }
+                g.fill(0);
             } else {
-                *g = self.flags.flags.iter().map(cell).collect();
+                *g = vec![0; n];
+                // Touch every page now, in order and on this side's own thread: page
+                // faults taken here are cheaper than faults scattered through the search.
+                for i in (0..n).step_by(512) {
+                    g[i] = 0;
+                }
+            }
+            for (i, f) in self.flags.flags.iter().enumerate() {
+                if *f != FREE {
+                    st(g, i, f64::NEG_INFINITY);
+                }
             }
         };
+        let [gf, gb] = &mut bi.g;
         std::thread::scope(|s| {
             s.spawn(|| init(gb));
             init(gf);
         });
-        let g = [&bi.g[0][..], &bi.g[1][..]];
+        st(&mut bi.g[0], start, 0.0);
+        st(&mut bi.g[1], goal, 0.0);
+        let g = bi.g.each_mut().map(|v| RwLock::new(std::mem::take(v)));
         let w = self.dem.width();
         let [hf, hb] = &mut bi.heap;
         let width = self.queue_width();
         hf.reset(width);
         hb.reset(width);
-        st(g[0], start, 0.0);
-        st(g[1], goal, 0.0);
         let (sc, sr) = ((start % w) as i64, (start / w) as i64);
         let (gc, gr) = ((goal % w) as i64, (goal / w) as i64);
         let mut fwd = side(hf, ctx.potential(start, sc, sr), start);
@@ -458,13 +469,14 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             }
             mu
         });
+        bi.g = g.map(|l| l.into_inner().unwrap_or_else(|e| e.into_inner()));
         if !mu.0.is_finite() {
             return None;
         }
         let m = mu.1 as usize;
-        let mut cells = ctx.trace::<false>(g[0], m, start)?;
+        let mut cells = ctx.trace::<false>(&bi.g[0], m, start)?;
         cells.reverse();
-        let on = ctx.trace::<true>(g[1], m, goal)?;
+        let on = ctx.trace::<true>(&bi.g[1], m, goal)?;
         cells.extend_from_slice(&on[1..]);
         Some(GridPath {
             cells,
