@@ -634,6 +634,28 @@ fn mission_limits_name_the_mission_key() {
     );
 }
 
+/// A memory budget that holds the planner's arrays and the horizon maps but not the
+/// sun-aware label search: the fixed-route run goes ahead, `--planner sun-aware` is
+/// refused before anything runs, naming the label search, the key and the fixes.
+#[test]
+fn the_sun_aware_label_search_counts_against_the_memory_budget() {
+    let s = Scratch::new();
+    mission(&s, "m.toml", "[terrain]", "[terrain]\nmax_memory_mb = 64");
+    let (code, err) = s.run(&["run", "m.toml", "--out", "fixed", "-q"]);
+    assert_eq!(code, 0, "{err}");
+    let (code, err) = s.run(&["run", "m.toml", "--planner", "sun-aware", "--out", "aware"]);
+    assert_eq!(code, 2, "{err}");
+    for part in [
+        "dem.asc: the route planner's arrays, the horizon maps and the sun-aware label search (",
+        "more than the memory budget of 64 MiB. Fix: raise the budget with --max-memory-mb (in \
+         a mission file: max_memory_mb under [terrain]) if the machine has the memory, or use \
+         --planner fixed, or fewer seasons (--season)",
+    ] {
+        assert!(err.contains(part), "{err}");
+    }
+    assert!(!s.path("aware/summary.json").exists());
+}
+
 /// A step of a millisecond over a year: the time series alone would need terabytes, so
 /// `check` and `run` refuse it before anything runs, naming the keys to change.
 #[test]

@@ -207,6 +207,23 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let visits = sun_aware_visits(&m, &planned.order);
     if a.planner == PlannerKind::SunAware {
         check_sun_aware(&m, &planner, &visits)?;
+        // The label searches of the seasons that run at once, on top of the planner's
+        // arrays and the horizon maps.
+        let at_once = rayon::current_num_threads().min(seasons.len()).max(1) as u64;
+        let labels = sun_aware_settings(a)
+            .label_memory_bytes()
+            .saturating_mul(at_once);
+        let what = format!(
+            "the route planner's arrays, the horizon maps and the sun-aware label search \
+             ({at_once} season(s) at once)"
+        );
+        sunward::limits::check(
+            &m.terrain.dem_path,
+            what,
+            need.saturating_add(labels),
+            m.terrain.read.max_memory_mb,
+            "use --planner fixed, or fewer seasons (--season)",
+        )?;
     }
     let route = &planned.route;
     if !a.quiet {
@@ -284,6 +301,18 @@ fn sun_aware_visits(m: &Mission, order: &[usize]) -> Vec<sunward::mission::sunaw
 
 /// What `--planner sun-aware` cannot plan is refused before the seasons run: a site in
 /// the goal's cell (the run ends on arrival, so its payload run would never happen).
+/// The sun-aware search settings `run` uses.
+fn sun_aware_settings(a: &RunArgs) -> sunward::mission::sunaware::SunAwareSettings {
+    use sunward::mission::sunaware::{SunAwareObjective, SunAwareSettings};
+    SunAwareSettings {
+        objective: match a.sun_aware_objective {
+            SunAwareGoal::Arrival => SunAwareObjective::EarliestArrival,
+            SunAwareGoal::Charge => SunAwareObjective::MostCharge,
+        },
+        ..SunAwareSettings::default()
+    }
+}
+
 fn check_sun_aware(
     m: &Mission,
     planner: &Planner<'_, RoverStepModel<'_>>,
@@ -323,17 +352,9 @@ fn sun_aware(
     progress: &dyn sunward::progress::Progress,
 ) -> Result<(Vec<SeasonResult>, Comparison), Error> {
     let out = a.out.as_path();
-    use sunward::mission::sunaware::{
-        run_seasons_sun_aware_with, SunAwareObjective, SunAwareSettings,
-    };
+    use sunward::mission::sunaware::run_seasons_sun_aware_with;
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
-    let settings = SunAwareSettings {
-        objective: match a.sun_aware_objective {
-            SunAwareGoal::Arrival => SunAwareObjective::EarliestArrival,
-            SunAwareGoal::Charge => SunAwareObjective::MostCharge,
-        },
-        ..SunAwareSettings::default()
-    };
+    let settings = sun_aware_settings(a);
     let planned = run_seasons_sun_aware_with(
         planner, setup, seasons, start, visits, goal, &settings, progress,
     )

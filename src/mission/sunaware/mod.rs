@@ -172,7 +172,10 @@
 //!
 //! # Bounds
 //! The time horizon (the policy's deadline) and a label budget (`max_labels`; memory is
-//! about `max_labels` × the label size, reported in [`SearchStats::label_bytes`]). When
+//! about `max_labels` × the label size, reported in [`SearchStats::label_bytes`] and
+//! [`SunAwareSettings::label_memory_bytes`], which `sunward run` adds, for the seasons
+//! searched at once, to the memory it checks against the budget before it starts; the
+//! label budget also bounds the work, hence the time, of a search). When
 //! no plan exists the error names the bound that bit: the goal unreachable on the
 //! lattice whatever the time (tilt or another cell block), the label budget, labels cut
 //! at the reserve everywhere, or labels that could not arrive before the horizon; with
@@ -251,6 +254,15 @@ pub struct SunAwareSettings {
     /// (module doc, "The greedy bound"). Off: the fronts are searched up to the deadline
     /// (the same plan, slower; for tests and measurements).
     pub greedy_bound: bool,
+}
+
+impl SunAwareSettings {
+    /// Bytes of one search's labels at the full label budget (the labels themselves;
+    /// the lattice edges and the wait cache come on top, module doc, Limits). A caller
+    /// that runs several searches at once multiplies it by their number.
+    pub fn label_memory_bytes(&self) -> u64 {
+        (self.max_labels as u64).saturating_mul(std::mem::size_of::<Label>() as u64)
+    }
 }
 
 impl Default for SunAwareSettings {
