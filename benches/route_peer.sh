@@ -4,11 +4,16 @@
 # with a slope cost and the same 25 degree cut, both as whole processes from the file on
 # disk. Prints both times, the ratio, and sunward's peak memory per cell.
 #
+# The machine is a shared VM whose speed drifts by tens of percent from minute to minute,
+# so both sides run ROUNDS times (default 3), alternating, and the script prints the
+# fastest and the median run of each and the ratio of both.
+#
 # The peer is installed here, in a venv under target/, never as a project dependency.
-# Usage: bash benches/route_peer.sh [SIZE]      (default 4096)
+# Usage: bash benches/route_peer.sh [SIZE] [ROUNDS]      (defaults 4096, 3)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 SIZE=${1:-4096}
+ROUNDS=${2:-3}
 WORK=target/route-peer
 VENV=$WORK/venv
 mkdir -p "$WORK"
@@ -44,19 +49,30 @@ PY
 EXTENT=$((SIZE))
 FROM="0.5,0.5"
 TO="$((EXTENT - 1)).5,$((EXTENT - 1)).5"
-echo "== scikit-image route_through_array, $SIZE x $SIZE"
-PEER_T=$( { /usr/bin/time -f "%e" "$VENV/bin/python" "$WORK/peer.py" "$DEM" >&2; } 2>&1 | tail -1 )
-echo "peer wall time: $PEER_T s"
-echo "== sunward route, $SIZE x $SIZE, energy objective"
-OUT=$( { /usr/bin/time -f "%e %M" "$BIN" route --terrain "$DEM" --rover "$WORK/rover.toml" \
-        --from "$FROM" --to "$TO" --objective energy --json > "$WORK/sunward.json"; } 2>&1 | tail -1 )
-OURS_T=${OUT% *}
-RSS_KB=${OUT#* }
-python3 - "$WORK/sunward.json" "$PEER_T" "$OURS_T" "$RSS_KB" "$SIZE" <<'PY'
-import json, sys
+PEER_TS=()
+OURS_TS=()
+for r in $(seq "$ROUNDS"); do
+    echo "== round $r of $ROUNDS: scikit-image route_through_array, $SIZE x $SIZE"
+    PEER_T=$( { /usr/bin/time -f "%e" "$VENV/bin/python" "$WORK/peer.py" "$DEM" >&2; } 2>&1 | tail -1 )
+    echo "peer wall time: $PEER_T s"
+    PEER_TS+=("$PEER_T")
+    echo "== round $r of $ROUNDS: sunward route, $SIZE x $SIZE, energy objective"
+    OUT=$( { /usr/bin/time -f "%e %M" "$BIN" route --terrain "$DEM" --rover "$WORK/rover.toml" \
+            --from "$FROM" --to "$TO" --objective energy --json > "$WORK/sunward.json"; } 2>&1 | tail -1 )
+    echo "sunward wall time: ${OUT% *} s"
+    OURS_TS+=("${OUT% *}")
+    RSS_KB=${OUT#* }
+done
+python3 - "$WORK/sunward.json" "$RSS_KB" "$SIZE" "${PEER_TS[*]}" "${OURS_TS[*]}" <<'PY'
+import json, statistics, sys
 d = json.load(open(sys.argv[1]))
-peer, ours, rss_kb, n = float(sys.argv[2]), float(sys.argv[3]), float(sys.argv[4]), int(sys.argv[5])
-print(f"sunward: {len(d['cells'])} cells, {d['energy_wh']:.1f} Wh, {d['expanded_nodes']} expanded, {ours:.2f} s wall")
-print(f"ratio peer/sunward: {peer / ours:.2f}x (target 8x)")
+rss_kb, n = float(sys.argv[2]), int(sys.argv[3])
+peer = [float(x) for x in sys.argv[4].split()]
+ours = [float(x) for x in sys.argv[5].split()]
+print(f"sunward: {len(d['cells'])} cells, {d['energy_wh']:.1f} Wh, {d['expanded_nodes']} expanded")
+print(f"peer    runs: {peer}  fastest {min(peer):.2f} s, median {statistics.median(peer):.2f} s")
+print(f"sunward runs: {ours}  fastest {min(ours):.2f} s, median {statistics.median(ours):.2f} s")
+print(f"ratio peer/sunward: fastest {min(peer) / min(ours):.2f}x, median "
+      f"{statistics.median(peer) / statistics.median(ours):.2f}x (target 8x)")
 print(f"sunward peak memory: {rss_kb / 1024:.0f} MiB = {rss_kb * 1024 / (n * n):.1f} bytes per cell (target 24)")
 PY
