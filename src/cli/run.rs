@@ -333,6 +333,8 @@ fn check_sun_aware(
 /// chart per season and the summary.json object.
 struct Comparison {
     rows: Vec<(String, String, String)>,
+    /// Each planned season's sun-aware route (for the route map).
+    routes: Vec<(String, Route)>,
     charts: Vec<(String, sunward::report::plot::LineChart)>,
     json: serde_json::Value,
 }
@@ -364,8 +366,10 @@ fn sun_aware(
         m.site.name
     );
     let offset = m.site.utc_offset.local_minus_utc();
+    let mut routes = Vec::new();
     let mut cmp = Comparison {
         rows: Vec::new(),
+        routes: Vec::new(),
         charts: Vec::new(),
         json: serde_json::Value::Array(Vec::new()),
     };
@@ -396,6 +400,7 @@ fn sun_aware(
                     .expect("JSON values serialise");
                 let name = format!("route-sun-aware-{}.geojson", slug(&f.season.name));
                 write_atomic(&out.join(&name), |w| w.write_all(gj.as_bytes()))?;
+                routes.push((f.season.name.clone(), p.route.clone()));
                 let t0 = sunward::mission::runner::season_start(
                     f.season.date,
                     i64::from(offset),
@@ -459,6 +464,7 @@ fn sun_aware(
         }));
     }
     cmp.json = serde_json::Value::Array(seasons_json);
+    cmp.routes = routes;
     Ok((planned.into_iter().map(|s| s.result).collect(), cmp))
 }
 
@@ -658,7 +664,19 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         .filter_map(|p| locate(planner, &p.point).ok())
         .map(|c| (c % w, c / w))
         .collect();
-    let px = route_map_rgb(&grey, dem.width(), dem.height(), route, &sites, scale);
+    let others: Vec<(&str, &Route)> = cmp
+        .map(|c| c.routes.iter().map(|(n, r)| (n.as_str(), r)).collect())
+        .unwrap_or_default();
+    let other_routes: Vec<&Route> = others.iter().map(|o| o.1).collect();
+    let px = route_map_rgb(
+        &grey,
+        dem.width(),
+        dem.height(),
+        route,
+        &other_routes,
+        &sites,
+        scale,
+    );
     write_atomic(&out.join("route_map.png"), |wr| {
         png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
     })?;
@@ -675,6 +693,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         dem.width(),
         dem.height(),
         route,
+        &others,
         &sites,
         scale,
         &format!("{}: route coloured by step energy", m.site.name),

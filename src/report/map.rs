@@ -8,6 +8,11 @@
 //! image, the route as vector segments in the same colours, the start, goal and sites as
 //! circles, and a title.
 //!
+//! Other routes of the same run (the sun-aware plans of the seasons) are drawn in the
+//! plain colours of [`OTHER_COLOURS`], not by energy: in the pixels under the route and a
+//! pixel wider (so that where one follows the route it shows as a coloured edge), in
+//! the SVG dashed over it and named in the title line.
+//!
 //! # Units
 //! Pixels; energies in joules only for the colour scale.
 
@@ -29,12 +34,27 @@ fn ramp(t: f64) -> [u8; 3] {
     [c(0), c(1), c(2)]
 }
 
-/// RGB pixels of the map: `(width·scale) × (height·scale)`.
+/// Colours of the other routes, in order, with their names (cycled beyond four).
+pub const OTHER_COLOURS: [([u8; 3], &str); 4] = [
+    ([200, 0, 200], "magenta"),
+    ([20, 20, 20], "black"),
+    ([120, 60, 200], "purple"),
+    ([255, 140, 210], "pink"),
+];
+
+/// The colour of other route `i` and its name.
+pub fn other_colour(i: usize) -> ([u8; 3], &'static str) {
+    OTHER_COLOURS[i % OTHER_COLOURS.len()]
+}
+
+/// RGB pixels of the map: `(width·scale) × (height·scale)`; `others` are drawn under
+/// the route, a pixel wider, in [`OTHER_COLOURS`].
 pub fn route_map_rgb(
     grey: &[u8],
     width: usize,
     height: usize,
     route: &Route,
+    others: &[&Route],
     sites: &[(usize, usize)],
     scale: usize,
 ) -> Vec<u8> {
@@ -57,6 +77,14 @@ pub fn route_map_rgb(
         }
     };
     let line = scale.max(2) / 2;
+    // The other routes first, one pixel wider: where one follows the route it shows as
+    // a coloured edge around it, elsewhere as its own line.
+    for (i, o) in others.iter().enumerate() {
+        let (rgb, _) = other_colour(i);
+        for p in &o.profile {
+            paint(p.col, p.row, rgb, line + 1);
+        }
+    }
     for p in &route.profile {
         let t = if hi > lo {
             (p.step_energy_j - lo) / (hi - lo)
@@ -80,12 +108,15 @@ pub fn route_map_rgb(
 }
 
 /// The map as SVG text (module doc). `relief_png` is the shaded relief, one pixel per
-/// cell (`width × height`); `scale` pixels per cell in the drawing.
+/// cell (`width × height`); `scale` pixels per cell in the drawing; `others` are named
+/// routes drawn dashed over the route in [`OTHER_COLOURS`].
+#[allow(clippy::too_many_arguments)]
 pub fn route_map_svg(
     relief_png: &[u8],
     width: usize,
     height: usize,
     route: &Route,
+    others: &[(&str, &Route)],
     sites: &[(usize, usize)],
     scale: usize,
     title: &str,
@@ -95,6 +126,15 @@ pub fn route_map_svg(
     let (pw, ph) = (width as f64 * s, height as f64 * s);
     let head = 28.0;
     let mut out = String::new();
+    let mut legend = title.to_string();
+    if !others.is_empty() {
+        let named: Vec<String> = others
+            .iter()
+            .enumerate()
+            .map(|(i, (name, _))| format!("{name} ({})", other_colour(i).1))
+            .collect();
+        legend.push_str(&format!("; dashed: {}", named.join(", ")));
+    }
     let esc = |t: &str| {
         t.replace('&', "&amp;")
             .replace('<', "&lt;")
@@ -109,7 +149,7 @@ pub fn route_map_svg(
          style=\"image-rendering:pixelated\" href=\"data:image/png;base64,{}\"/>\n",
         ph + head,
         ph + head,
-        esc(title),
+        esc(&legend),
         crate::report::html::base64(relief_png)
     );
     let energies: Vec<f64> = route.profile.iter().map(|p| p.step_energy_j).collect();
@@ -129,6 +169,25 @@ pub fn route_map_svg(
             out,
             "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\" stroke=\"rgb({r},{g},{b})\" stroke-width=\"{stroke:.1}\" stroke-linecap=\"round\"/>",
             a.0, a.1, z.0, z.1
+        );
+    }
+    for (i, (_, o)) in others.iter().enumerate() {
+        let ([r, g, b], _) = other_colour(i);
+        let points: Vec<String> = o
+            .profile
+            .iter()
+            .map(|p| {
+                let (x, y) = at(p.col, p.row);
+                format!("{x:.1},{y:.1}")
+            })
+            .collect();
+        let _ = writeln!(
+            out,
+            "<polyline points=\"{}\" fill=\"none\" stroke=\"rgb({r},{g},{b})\" stroke-width=\"{:.1}\" stroke-dasharray=\"{:.1},{:.1}\" stroke-linejoin=\"round\"/>",
+            points.join(" "),
+            (stroke * 0.6).max(1.5),
+            stroke * 2.5,
+            stroke * 1.5
         );
     }
     let mark = (s * 3.0).max(4.0);
@@ -153,6 +212,40 @@ pub fn route_map_svg(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A straight route across a flat 20 x 9 grid and another along the bottom row:
+    /// the other is drawn in the first colour in both maps and named in the SVG title.
+    #[test]
+    fn other_routes_are_drawn_and_named() {
+        use crate::plan::route::route_along;
+        use crate::plan::{CellFlags, Connectivity, Objective, Planner, TiltLimits};
+        use crate::terrain::{GeoRef, Grid};
+        use crate::vehicle::{plan_model::RoverStepModel, Rover};
+        let dem = Grid::from_vec(20, 9, vec![0.0; 180], GeoRef::local(1.0));
+        let flags = CellFlags::from_dem(&dem);
+        let rover = Rover::default();
+        let model = RoverStepModel::new(&rover);
+        let p = Planner {
+            dem: &dem,
+            flags: &flags,
+            model: &model,
+            limits: TiltLimits::default(),
+            connectivity: Connectivity::Eight,
+            objective: Objective::ENERGY,
+        };
+        let main = route_along(&p, &(20..40).collect::<Vec<_>>(), 0);
+        let other = route_along(&p, &(140..160).collect::<Vec<_>>(), 0);
+        let px = route_map_rgb(&[128; 180], 20, 9, &main, &[&other], &[], 2);
+        // Cell (10, 7) of the other route, at pixel (21, 15) with 2 pixels per cell, away
+        // from the start and goal marks; a cell of neither route stays grey.
+        let pixel = |x: usize, y: usize| px[(y * 40 + x) * 3..(y * 40 + x) * 3 + 3].to_vec();
+        assert_eq!(pixel(21, 15), OTHER_COLOURS[0].0);
+        assert_eq!(pixel(21, 10), [128; 3]);
+        let svg = route_map_svg(&[], 20, 9, &main, &[("winter", &other)], &[], 2, "map");
+        assert!(svg.contains("map; dashed: winter (magenta)"), "{svg}");
+        assert!(svg.contains("stroke=\"rgb(200,0,200)\""), "{svg}");
+        assert!(svg.contains("stroke-dasharray"), "{svg}");
+    }
 
     #[test]
     fn ramp_ends_are_blue_and_red() {
