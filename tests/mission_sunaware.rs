@@ -69,6 +69,17 @@ fn at(label: &str, col: usize, row: usize, h: usize) -> RoutePoint {
     }
 }
 
+/// The two legs of the survey fixture: a lit start on the bench, a site on the shadowed
+/// floor with a two-hour payload run, and the goal along the floor.
+fn survey_legs(h: usize) -> (RoutePoint, RoutePoint, RoutePoint, [Visit; 1]) {
+    let site = at("site", 40, 40, h);
+    let visits = [Visit {
+        point: site.clone(),
+        payload_s: Some(7200.0),
+    }];
+    (at("start", 8, 12, h), site, at("goal", 120, 40, h), visits)
+}
+
 /// A slow survey rover (0.1 m/s), so that a crossing takes most of a day.
 fn rover() -> Rover {
     Rover {
@@ -667,17 +678,8 @@ fn a_later_leg_starts_from_the_whole_arrival_front() {
     let sv = survey();
     let model = RoverStepModel::new(&sv.kit.rover);
     let p = planner(&sv.dem, &sv.flags, &model);
-    let h = sv.dem.height();
-    let (from, site, to) = (
-        at("start", 8, 12, h),
-        at("site", 40, 40, h),
-        at("goal", 120, 40, h),
-    );
-    let payload_s = 7200.0;
-    let visits = [Visit {
-        point: site.clone(),
-        payload_s: Some(payload_s),
-    }];
+    let (from, site, to, visits) = survey_legs(sv.dem.height());
+    let payload_s = visits[0].payload_s.unwrap();
     let fixed = plan_route(&p, &[from.clone(), site.clone(), to.clone()]).unwrap();
     let site_row = fixed.cells().iter().position(|c| *c == [40, 40]).unwrap();
     let mut template = setup(&fixed, &sv.kit, Some(&sv.horizons), policy(16.0));
@@ -817,16 +819,7 @@ fn a_front_cut_by_the_label_budget_is_named() {
     let sv = survey();
     let model = RoverStepModel::new(&sv.kit.rover);
     let p = planner(&sv.dem, &sv.flags, &model);
-    let h = sv.dem.height();
-    let (from, site, to) = (
-        at("start", 8, 12, h),
-        at("site", 40, 40, h),
-        at("goal", 120, 40, h),
-    );
-    let visits = [Visit {
-        point: site.clone(),
-        payload_s: Some(7200.0),
-    }];
+    let (from, site, to, visits) = survey_legs(sv.dem.height());
     let fixed = plan_route(&p, &[from.clone(), site.clone(), to.clone()]).unwrap();
     let mut t = setup(&fixed, &sv.kit, Some(&sv.horizons), policy(16.0));
     t.initial_soc = 0.6;
@@ -865,16 +858,7 @@ fn the_greedy_bound_keeps_the_plan_of_the_unbounded_fronts() {
     let sv = survey();
     let model = RoverStepModel::new(&sv.kit.rover);
     let p = planner(&sv.dem, &sv.flags, &model);
-    let h = sv.dem.height();
-    let (from, site, to) = (
-        at("start", 8, 12, h),
-        at("site", 40, 40, h),
-        at("goal", 120, 40, h),
-    );
-    let visits = [Visit {
-        point: site.clone(),
-        payload_s: Some(7200.0),
-    }];
+    let (from, site, to, visits) = survey_legs(sv.dem.height());
     let fixed = plan_route(&p, &[from.clone(), site.clone(), to.clone()]).unwrap();
     let bounded = SunAwareSettings {
         bucket_s: 1800.0,
