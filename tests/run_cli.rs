@@ -214,12 +214,20 @@ fn an_unplannable_route_is_infeasible_for_tilt() {
     }
 }
 
+/// The bundled survey mission's text.
+fn bundled_mission_text() -> String {
+    std::fs::read_to_string(mission()).unwrap()
+}
+
+/// The absolute path of the bundled mission's terrain (for copies written elsewhere).
+fn bundled_terrain() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("terrains/vardholm_plateau.tif")
+}
+
 /// The survey mission from base camp straight to the far station (no cairn, no sites),
 /// with a two-day deadline: the shape `--planner sun-aware` plans.
 fn direct_mission(dir: &std::path::Path) -> PathBuf {
-    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let text = std::fs::read_to_string(mission()).unwrap();
-    let terrain = root.join("terrains/vardholm_plateau.tif");
+    let (text, terrain) = (bundled_mission_text(), bundled_terrain());
     let mut keep = Vec::new();
     let mut skip = 0;
     for line in text.lines() {
@@ -292,9 +300,7 @@ fn sun_aware_planner_runs_beside_the_fixed_route() {
 /// debug-build test (the full mission's sun-aware run takes several minutes in a
 /// release build).
 fn one_site_mission(dir: &std::path::Path) -> PathBuf {
-    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let text = std::fs::read_to_string(mission()).unwrap();
-    let terrain = root.join("terrains/vardholm_plateau.tif");
+    let (text, terrain) = (bundled_mission_text(), bundled_terrain());
     let text = text.replace(
         "file = \"../terrains/vardholm_plateau.tif\"",
         &format!("file = {:?}", terrain.display().to_string()),
