@@ -393,6 +393,21 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         tan: &TanLimits,
         blocked: impl Fn(usize) -> Option<Blocked>,
     ) -> Result<Step, Blocked> {
+        let dz = self.z(to) - self.z(at.cell);
+        self.step_past_dz::<INTERIOR>(at, di, to, dz, tan, blocked)
+    }
+
+    /// [`Self::step_past`] with the rise `dz` = z(to) − z(at) given.
+    #[inline]
+    pub(super) fn step_past_dz<const INTERIOR: bool>(
+        &self,
+        at: At,
+        di: &DirInfo,
+        to: usize,
+        dz: f64,
+        tan: &TanLimits,
+        blocked: impl Fn(usize) -> Option<Blocked>,
+    ) -> Result<Step, Blocked> {
         let mut flank = [[None; 2]; 2];
         let pairs = if di.one_pair { 1 } else { 2 };
         let pairs_in = flank.iter_mut().zip(&di.flanks).zip(&di.flank_delta);
@@ -408,7 +423,6 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 }
             }
         }
-        let dz = self.z(to) - self.z(at.cell);
         let s = dz / di.d_m;
         // Limits compared as tangents: atan is monotone, so s > tan(limit) ⇔ pitch > limit,
         // and |roll| > limit ⇔ t² > tan²(limit)·(1 + s²) (plan::tilt).
@@ -459,7 +473,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     /// The reduced cost c' = max(0, c − K·dz) of the step from `at` in direction `di` to
-    /// `to` (a free cell), or None when the step is blocked; flank blocks are looked up by
+    /// `to` (a free cell, `dz` = z(to) − z(at)), or None when the step is blocked; flank blocks are looked up by
     /// `blocked`. The one place both searches price a step, so a cost recomputed for a
     /// trace is the same number to the bit.
     #[inline]
@@ -468,11 +482,14 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         at: At,
         di: &DirInfo,
         to: usize,
+        dz: f64,
         tan: &TanLimits,
         k: f64,
         blocked: impl Fn(usize) -> Option<Blocked>,
     ) -> Option<f64> {
-        let step = self.step_past::<INTERIOR>(at, di, to, tan, blocked).ok()?;
+        let step = self
+            .step_past_dz::<INTERIOR>(at, di, to, dz, tan, blocked)
+            .ok()?;
         let e = self.model.step(&step).ok()?;
         let len = if self.objective.per_m != 0.0 {
             step.length_m()
@@ -482,7 +499,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         Some((self.objective.cost(len, &e) - k * step.dz_m).max(0.0))
     }
 
-    /// True when the step from `from` to `to` in direction `di` (reduced by the potential
+    /// True when the step in direction `di` with rise `dz` (reduced by the potential
     /// weight `k`), from a label `g_from`, cannot beat the label `g_to`, so it need not be priced: a step costs at least the
     /// heuristic's bound of its displacement (contract 1 of [`super::cost`]), here taken
     /// a hair low (by 1e-12 relative) against rounding, so skipping it changes nothing.
@@ -494,8 +511,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         &self,
         wheel: Option<&WheelBounds>,
         di: &DirInfo,
-        from: usize,
-        to: usize,
+        dz: f64,
         k: f64,
         g_from: f64,
         g_to: f64,
@@ -506,7 +522,6 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         if !g_to.is_finite() {
             return false;
         }
-        let dz = self.z(to) - self.z(from);
         let lb = self.objective.lower_bound_wheel(wb, di.d_m, dz) - k * dz;
         g_from + lb * (1.0 - 1e-12) >= g_to
     }
@@ -584,6 +599,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 return Ok(self.trace(ws, start, goal, k, expanded));
             }
             let at = self.at(u);
+            let z_u = self.z(u);
             // The loop twice over: with and without bounds checks.
             macro_rules! relax {
                 ($interior:literal) => {
@@ -596,14 +612,15 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                         if is_closed(g_v) {
                             continue;
                         }
-                        if self.cannot_improve(toward.wheel.as_ref(), di, at.cell, v, k, gu, g_v) {
+                        let dz = self.z(v) - z_u;
+                        if self.cannot_improve(toward.wheel.as_ref(), di, dz, k, gu, g_v) {
                             continue;
                         }
                         let g = &ws.g;
                         let flank_block =
                             |c: usize| is_static_block(g[c]).then_some(Blocked::NoData);
                         let Some(reduced) =
-                            self.reduced::<$interior>(at, di, v, &tan, k, flank_block)
+                            self.reduced::<$interior>(at, di, v, dz, &tan, k, flank_block)
                         else {
                             continue;
                         };

@@ -191,6 +191,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         at: At,
         gu: f64,
     ) {
+        let z_at = self.p.z(at.cell);
         for di in &self.table[..self.dirs] {
             let (from, to, col, row) = if REV {
                 let (col, row) = (at.col - di.dc, at.row - di.dr);
@@ -217,16 +218,22 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             if is_closed(g_next) {
                 continue;
             }
+            // The rise of the step from → to; `at` is one of its ends.
+            let dz = if REV {
+                z_at - self.p.z(from.cell)
+            } else {
+                self.p.z(to) - z_at
+            };
             if self
                 .p
-                .cannot_improve(self.wheel.as_ref(), di, from.cell, to, self.k, gu, g_next)
+                .cannot_improve(self.wheel.as_ref(), di, dz, self.k, gu, g_next)
             {
                 continue;
             }
             let flank_block = |c: usize| is_static_block(ld(g, c)).then_some(Blocked::NoData);
-            let Some(c) = self
-                .p
-                .reduced::<INTERIOR>(from, di, to, &self.tan, self.k, flank_block)
+            let Some(c) =
+                self.p
+                    .reduced::<INTERIOR>(from, di, to, dz, &self.tan, self.k, flank_block)
             else {
                 continue;
             };
@@ -335,9 +342,10 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 if !gy.is_finite() {
                     continue;
                 }
-                let Some(c) = self
-                    .p
-                    .reduced::<false>(from, di, to, &self.tan, self.k, flank_block)
+                let dz = self.p.z(to) - self.p.z(from.cell);
+                let Some(c) =
+                    self.p
+                        .reduced::<false>(from, di, to, dz, &self.tan, self.k, flank_block)
                 else {
                     continue;
                 };
