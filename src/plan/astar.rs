@@ -477,6 +477,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// `blocked`. The one place both searches price a step, so a cost recomputed for a
     /// trace is the same number to the bit.
     #[inline]
+    #[allow(clippy::too_many_arguments)]
     pub(super) fn reduced<const INTERIOR: bool>(
         &self,
         at: At,
