@@ -51,7 +51,7 @@
 //! zero-cost steps, which a vehicle with rolling and hotel losses does not have), or no
 //! route exist, the one-way search runs instead and gives the route or its explanation.
 
-use std::sync::{Barrier, Mutex, RwLock};
+use std::sync::{Condvar, Mutex, RwLock};
 
 use crate::plan::astar::{
     dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
@@ -89,6 +89,53 @@ fn ld(g: &[u64], i: usize) -> f64 {
 #[inline]
 fn st(g: &mut [u64], i: usize, v: f64) {
     g[i] = v.to_bits() ^ UNLABELLED;
+}
+
+/// The two sides' barrier. Unlike std's `Barrier` it can be broken: a side that leaves
+/// by a panic breaks it (through [`BreakOnUnwind`]), and the other side's wait then
+/// returns false instead of waiting for ever, so the panic reaches the caller.
+#[derive(Debug, Default)]
+struct Rendezvous {
+    /// (sides arrived, generation, broken).
+    state: Mutex<(u8, u64, bool)>,
+    turn: Condvar,
+}
+
+impl Rendezvous {
+    /// Waits for the other side: true when both arrived, false when the barrier is broken.
+    fn wait(&self) -> bool {
+        let mut s = self.state.lock().unwrap_or_else(|e| e.into_inner());
+        if s.2 {
+            return false;
+        }
+        let generation = s.1;
+        s.0 += 1;
+        if s.0 == 2 {
+            *s = (0, generation + 1, false);
+            self.turn.notify_all();
+            return true;
+        }
+        while s.1 == generation && !s.2 {
+            s = self.turn.wait(s).unwrap_or_else(|e| e.into_inner());
+        }
+        s.1 != generation
+    }
+
+    fn break_up(&self) {
+        self.state.lock().unwrap_or_else(|e| e.into_inner()).2 = true;
+        self.turn.notify_all();
+    }
+}
+
+/// Breaks a [`Rendezvous`] when dropped while its thread panics.
+struct BreakOnUnwind<'a>(&'a Rendezvous);
+
+impl Drop for BreakOnUnwind<'_> {
+    fn drop(&mut self) {
+        if std::thread::panicking() {
+            self.0.break_up();
+        }
+    }
 }
 
 /// (sum, cell) ordered by sum, then by cell.
@@ -272,17 +319,22 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         me: usize,
         g: &[RwLock<Vec<u64>>; 2],
         side: &mut Side<'_>,
-        barrier: &Barrier,
+        barrier: &Rendezvous,
         reports: &Mutex<[Report; 2]>,
     ) -> (f64, u32) {
+        let _leaving = BreakOnUnwind(barrier);
         let mut mu = (f64::INFINITY, u32::MAX);
+        // The other side left by a panic: stop; its join passes the panic on.
+        let gone = (f64::INFINITY, u32::MAX);
         loop {
             let before = side.expanded;
             {
                 let mut own = g[me].write().unwrap_or_else(|e| e.into_inner());
                 self.advance::<REV>(&mut own, side);
             }
-            barrier.wait();
+            if !barrier.wait() {
+                return gone;
+            }
             let best = {
                 let own = g[me].read().unwrap_or_else(|e| e.into_inner());
                 let other = g[1 - me].read().unwrap_or_else(|e| e.into_inner());
@@ -294,7 +346,9 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 count: side.expanded - before,
             };
             reports.lock().unwrap_or_else(|e| e.into_inner())[me] = report;
-            barrier.wait();
+            if !barrier.wait() {
+                return gone;
+            }
             let both = *reports.lock().unwrap_or_else(|e| e.into_inner());
             for r in &both {
                 if earlier(r.best, mu) {
@@ -461,7 +515,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             s.delta = d0;
             s.theta += d0;
         }
-        let barrier = Barrier::new(2);
+        let barrier = Rendezvous::default();
         let reports = Mutex::new(
             [Report {
                 best: (f64::INFINITY, u32::MAX),
@@ -491,5 +545,34 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             cost: mu.0 + ctx.k * (self.z(goal) - self.z(start)),
             expanded: fwd.expanded + bwd.expanded,
         })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Both sides pass the barrier round after round; a side that panics breaks it, and
+    /// the other side's next wait returns false instead of hanging.
+    #[test]
+    fn a_panicking_side_breaks_the_rendezvous() {
+        let r = Rendezvous::default();
+        std::thread::scope(|s| {
+            let other = s.spawn(|| (0..100).all(|_| r.wait()));
+            assert!((0..100).all(|_| r.wait()));
+            assert!(other.join().unwrap());
+        });
+        let r = Rendezvous::default();
+        let left = std::thread::scope(|s| {
+            let side = s.spawn(|| {
+                let _leaving = BreakOnUnwind(&r);
+                assert!(r.wait());
+                panic!("a side fails");
+            });
+            let first = r.wait();
+            let second = r.wait();
+            (first, second, side.join().is_err())
+        });
+        assert_eq!(left, (true, false, true));
     }
 }
