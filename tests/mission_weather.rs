@@ -2,6 +2,8 @@
 //! clear sky gives half the energy, and a file that does not cover a season is refused
 //! with a message naming the file, its span, the season's dates and the fix.
 
+mod common;
+use common::parked_route;
 use std::path::PathBuf;
 
 use assert_cmd::Command;
@@ -13,9 +15,7 @@ use sunward::battery::pack::Pack;
 use sunward::battery::params::PackParams;
 use sunward::battery::thermal::{ThermalNode, ThermalParams};
 use sunward::mission::sim::{simulate, DriveHours, EndCondition, Policy, SimSetup, SkySetup};
-use sunward::plan::{
-    plan_route, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
-};
+use sunward::plan::Route;
 use sunward::sun::climate::{parse_weather_csv, WeatherCsvOptions, WeatherSeries};
 use sunward::sun::irradiance::{
     absolute_airmass, extraterrestrial_w_m2, ineichen_perez, relative_airmass, LinkeTurbidity,
@@ -23,31 +23,9 @@ use sunward::sun::irradiance::{
 use sunward::sun::panel::{CellTemperature, Mount, Panel};
 use sunward::sun::position::{sun_position, Observer};
 use sunward::sun::transposition::SkyModel;
-use sunward::terrain::{GeoRef, Grid};
 use sunward::vehicle::Rover;
 
 const DELTA_T_S: f64 = 69.0;
-
-/// A rover standing still: start = goal on a flat 5 x 5 grid.
-fn parked_route(rover: &Rover) -> Route {
-    let dem = Grid::from_vec(5, 5, vec![100.0; 25], GeoRef::local(2.0));
-    let flags = CellFlags::from_dem(&dem);
-    let model = sunward::vehicle::plan_model::RoverStepModel::new(rover);
-    let p = Planner {
-        dem: &dem,
-        flags: &flags,
-        model: &model,
-        limits: TiltLimits::default(),
-        connectivity: Connectivity::Eight,
-        objective: Objective::ENERGY,
-    };
-    let pt = |label: &str| RoutePoint {
-        label: label.into(),
-        x: 5.0,
-        y: -5.0,
-    };
-    plan_route(&p, &[pt("start"), pt("goal")]).unwrap()
-}
 
 /// Output = area × efficiency × POA exactly: no temperature coefficient, soiling, MPPT
 /// or wiring loss (so the air temperature has no effect on the energy).

@@ -5,7 +5,9 @@
 //! another result; one thread or two, the same result); and with a vanishing spread it
 //! gives the deterministic run's verdict.
 
+mod common;
 use chrono::NaiveDate;
+use common::parked_route;
 use sunward::battery::ambient::{Ambient, MonthlyClimate};
 use sunward::battery::loads::{LoadSpec, Loads, Schedule};
 use sunward::battery::pack::Pack;
@@ -14,9 +16,7 @@ use sunward::battery::thermal::{ThermalNode, ThermalParams};
 use sunward::mission::resolve::Season;
 use sunward::mission::runner::run_seasons;
 use sunward::mission::sim::{DriveHours, EndCondition, Policy, SimSetup, SkySetup};
-use sunward::plan::{
-    plan_route, CellFlags, Connectivity, Objective, Planner, Route, RoutePoint, TiltLimits,
-};
+use sunward::plan::Route;
 use sunward::progress::Silent;
 use sunward::study::montecarlo::{monte_carlo, SeasonMonteCarlo};
 use sunward::sun::clearness_mc::{DailyClearness, DayLaw, Xoshiro256};
@@ -24,7 +24,6 @@ use sunward::sun::irradiance::LinkeTurbidity;
 use sunward::sun::panel::{CellTemperature, Mount, Panel};
 use sunward::sun::position::Observer;
 use sunward::sun::transposition::SkyModel;
-use sunward::terrain::{GeoRef, Grid};
 use sunward::vehicle::Rover;
 
 fn reference(name: &str) -> String {
@@ -99,26 +98,6 @@ fn beta_draws_match_the_incomplete_beta_function() {
 // A small mission: a rover parked (awake: 25 W hotel) for three days on flat ground at
 // 45° N with a horizontal 1.5 m² panel and a 30 W load. Summer's margin depends on the
 // weather; spring and winter strand whatever the draws.
-
-fn parked_route(rover: &Rover) -> Route {
-    let dem = Grid::from_vec(5, 5, vec![100.0; 25], GeoRef::local(2.0));
-    let flags = CellFlags::from_dem(&dem);
-    let model = sunward::vehicle::plan_model::RoverStepModel::new(rover);
-    let p = Planner {
-        dem: &dem,
-        flags: &flags,
-        model: &model,
-        limits: TiltLimits::default(),
-        connectivity: Connectivity::Eight,
-        objective: Objective::ENERGY,
-    };
-    let pt = |label: &str| RoutePoint {
-        label: label.into(),
-        x: 5.0,
-        y: -5.0,
-    };
-    plan_route(&p, &[pt("start"), pt("goal")]).unwrap()
-}
 
 struct World {
     route: Route,
