@@ -738,12 +738,24 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
             source,
         },
     )?;
+    let mut caption = "Route over the shaded relief, coloured by step energy (blue: cheapest, \
+                       red: most costly); start green, goal white, sites and waypoints yellow"
+        .to_string();
+    if !others.is_empty() {
+        let named: Vec<String> = others
+            .iter()
+            .enumerate()
+            .map(|(i, (name, _))| format!("{name} {}", sunward::report::map::other_colour(i).1))
+            .collect();
+        caption.push_str(&format!(
+            "; sun-aware routes in plain colours under it: {}",
+            named.join(", ")
+        ));
+    }
     figures.insert(
         0,
         Figure {
-            caption: "Route over the shaded relief, coloured by step energy (blue: cheapest, \
-                      red: most costly); start green, goal white, sites and waypoints yellow"
-                .into(),
+            caption,
             png: map_png,
         },
     );
