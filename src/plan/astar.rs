@@ -325,14 +325,21 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     }
 
     pub(super) fn at(&self, cell: usize) -> At {
-        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
+        let w = self.dem.width() as i64;
         let (col, row) = ((cell as i64) % w, (cell as i64) / w);
         At {
             cell,
             col,
             row,
-            interior: col >= 2 && row >= 2 && col + 2 < w && row + 2 < h,
+            interior: self.interior(col, row),
         }
+    }
+
+    /// Whether every cell within two steps of (`col`, `row`) is inside the grid.
+    #[inline]
+    pub(super) fn interior(&self, col: i64, row: i64) -> bool {
+        let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
+        col >= 2 && row >= 2 && col + 2 < w && row + 2 < h
     }
 
     /// The step from `from` in direction `dir`, checked against the grid, the cell
@@ -360,9 +367,15 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         if INTERIOR || at.interior {
             return Some((at.cell as isize + delta) as usize);
         }
-        let (c, r) = (at.col + dc, at.row + dr);
+        self.inside(at.col + dc, at.row + dr)
+            .then(|| (at.cell as isize + delta) as usize)
+    }
+
+    /// Whether (`col`, `row`) is a cell of the grid.
+    #[inline]
+    pub(super) fn inside(&self, col: i64, row: i64) -> bool {
         let (w, h) = (self.dem.width() as i64, self.dem.height() as i64);
-        (c >= 0 && r >= 0 && c < w && r < h).then(|| (at.cell as isize + delta) as usize)
+        col >= 0 && row >= 0 && col < w && row < h
     }
 
     #[inline]

@@ -63,7 +63,7 @@ use crate::plan::astar::{
     dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
     Unreachable, Workspace, FREE,
 };
-use crate::plan::cost::{Blocked, StepModel, WheelBounds};
+use crate::plan::cost::{Blocked, StepModel};
 use crate::plan::queue::BucketQueue;
 
 /// Cells per side a round settles at most, about (a round is twice as many work units,
@@ -188,11 +188,8 @@ struct Ctx<'p, 'a, M: StepModel + ?Sized> {
     k: f64,
     to_goal: Toward,
     from_start: Toward,
-    w: i64,
-    h: i64,
     /// Cells per round aimed at.
     round: u64,
-    wheel: Option<WheelBounds>,
 }
 
 impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
@@ -200,10 +197,6 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
     #[inline]
     fn potential(&self, v: usize, col: i64, row: i64) -> f64 {
         0.5 * (self.to_goal.bound(self.p, v, col, row) - self.from_start.bound(self.p, v, col, row))
-    }
-
-    fn interior(&self, col: i64, row: i64) -> bool {
-        col >= 2 && row >= 2 && col + 2 < self.w && row + 2 < self.h
     }
 
     /// Settles queued cells in order until the round's work is done (`REV`: backward),
@@ -250,8 +243,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         for di in &self.table[..self.dirs] {
             let (from, to, col, row) = if REV {
                 let (col, row) = (at.col - di.dc, at.row - di.dr);
-                let inside = col >= 0 && row >= 0 && col < self.w && row < self.h;
-                if !(INTERIOR || inside) {
+                if !(INTERIOR || self.p.inside(col, row)) {
                     continue;
                 }
                 let u = (at.cell as isize - di.delta) as usize;
@@ -259,7 +251,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                     cell: u,
                     col,
                     row,
-                    interior: INTERIOR || self.interior(col, row),
+                    interior: INTERIOR || self.p.interior(col, row),
                 };
                 (from, at.cell, col, row)
             } else {
@@ -281,7 +273,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             };
             if self
                 .p
-                .cannot_improve(self.wheel.as_ref(), di, dz, self.k, gu, g_next)
+                .cannot_improve(self.to_goal.wheel.as_ref(), di, dz, self.k, gu, g_next)
             {
                 continue;
             }
@@ -389,7 +381,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                     (at, y)
                 } else {
                     let (col, row) = (at.col - di.dc, at.row - di.dr);
-                    if !(col >= 0 && row >= 0 && col < self.w && row < self.h) {
+                    if !self.p.inside(col, row) {
                         continue;
                     }
                     let u = (x as isize - di.delta) as usize;
@@ -466,10 +458,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
             k: self.objective.potential_per_m(self.model),
             to_goal: Toward::new(self, goal, false),
             from_start: Toward::new(self, start, true),
-            w: self.dem.width() as i64,
-            h: self.dem.height() as i64,
             round: (n as u64 / 64).clamp(8, ROUND_CELLS),
-            wheel: self.model.wheel_bounds(),
         };
         // Zeroed (untouched) pages read as unlabelled; only blocked cells are written.
         let init = |g: &mut Vec<u64>| {
