@@ -299,8 +299,6 @@ fn sun_aware_visits(m: &Mission, order: &[usize]) -> Vec<sunward::mission::sunaw
     waypoints.chain(sites).collect()
 }
 
-/// What `--planner sun-aware` cannot plan is refused before the seasons run: a site in
-/// the goal's cell (the run ends on arrival, so its payload run would never happen).
 /// The sun-aware search settings `run` uses.
 fn sun_aware_settings(a: &RunArgs) -> sunward::mission::sunaware::SunAwareSettings {
     use sunward::mission::sunaware::{SunAwareObjective, SunAwareSettings};
@@ -313,6 +311,8 @@ fn sun_aware_settings(a: &RunArgs) -> sunward::mission::sunaware::SunAwareSettin
     }
 }
 
+/// What `--planner sun-aware` cannot plan is refused before the seasons run: a site in
+/// the goal's cell (the run ends on arrival, so its payload run would never happen).
 fn check_sun_aware(
     m: &Mission,
     planner: &Planner<'_, RoverStepModel<'_>>,
@@ -366,7 +366,6 @@ fn sun_aware(
         m.site.name
     );
     let offset = m.site.utc_offset.local_minus_utc();
-    let mut routes = Vec::new();
     let mut cmp = Comparison {
         rows: Vec::new(),
         routes: Vec::new(),
@@ -400,7 +399,7 @@ fn sun_aware(
                     .expect("JSON values serialise");
                 let name = format!("route-sun-aware-{}.geojson", slug(&f.season.name));
                 write_atomic(&out.join(&name), |w| w.write_all(gj.as_bytes()))?;
-                routes.push((f.season.name.clone(), p.route.clone()));
+                cmp.routes.push((f.season.name.clone(), p.route.clone()));
                 let t0 = sunward::mission::runner::season_start(
                     f.season.date,
                     i64::from(offset),
@@ -464,7 +463,6 @@ fn sun_aware(
         }));
     }
     cmp.json = serde_json::Value::Array(seasons_json);
-    cmp.routes = routes;
     Ok((planned.into_iter().map(|s| s.result).collect(), cmp))
 }
 
@@ -742,14 +740,9 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
                        red: most costly); start green, goal white, sites and waypoints yellow"
         .to_string();
     if !others.is_empty() {
-        let named: Vec<String> = others
-            .iter()
-            .enumerate()
-            .map(|(i, (name, _))| format!("{name} {}", sunward::report::map::other_colour(i).1))
-            .collect();
         caption.push_str(&format!(
             "; sun-aware routes in plain colours under it: {}",
-            named.join(", ")
+            sunward::report::map::others_legend(&others)
         ));
     }
     figures.insert(

@@ -490,7 +490,6 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
     let mut next_hold = 0;
     // The cell the rover was last in, and its shade.
     let mut shade: (Option<(usize, usize)>, Option<SiteShade<'_>>) = (None, None);
-    let shade = &mut shade;
     let steps = (setup.policy.deadline_s / dt).ceil() as usize;
     for k in 0..steps {
         if run.arrival.is_some() && setup.policy.end == EndCondition::Arrival {
@@ -590,7 +589,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         if shade.0 != Some(cell) {
             // The cell's shade (its sky-view factor) is computed once per cell visited,
             // not once per step.
-            *shade = (
+            shade = (
                 Some(cell),
                 setup
                     .horizon

@@ -47,6 +47,17 @@ pub fn other_colour(i: usize) -> ([u8; 3], &'static str) {
     OTHER_COLOURS[i % OTHER_COLOURS.len()]
 }
 
+/// The other routes' names with their colours, in drawing order: "spring (magenta),
+/// summer (black)".
+pub fn others_legend(others: &[(&str, &Route)]) -> String {
+    others
+        .iter()
+        .enumerate()
+        .map(|(i, (name, _))| format!("{name} ({})", other_colour(i).1))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
 /// RGB pixels of the map: `(width·scale) × (height·scale)`; `others` are drawn under
 /// the route, a pixel wider, in [`OTHER_COLOURS`].
 pub fn route_map_rgb(
@@ -128,12 +139,7 @@ pub fn route_map_svg(
     let mut out = String::new();
     let mut legend = title.to_string();
     if !others.is_empty() {
-        let named: Vec<String> = others
-            .iter()
-            .enumerate()
-            .map(|(i, (name, _))| format!("{name} ({})", other_colour(i).1))
-            .collect();
-        legend.push_str(&format!("; dashed: {}", named.join(", ")));
+        legend.push_str(&format!("; dashed: {}", others_legend(others)));
     }
     let esc = |t: &str| {
         t.replace('&', "&amp;")
