@@ -1776,28 +1776,13 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         }
         let b = ((l.walk.t_s / self.settings.bucket_s) as usize).min(self.buckets - 1);
         let key = l.node as usize * self.buckets + b;
-        let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
-        let labels = &mut self.labels;
         let front = self.fronts.entry(key).or_default();
         let eps = self.settings.soc_resolution;
-        if front.iter().any(|&i| {
-            let o = &labels[i as usize];
-            dominates(o.walk.t_s, o.walk.pack.soc, t, soc, eps)
-        }) {
+        let Some(beaten) = pareto_insert(front, &mut self.labels, &l, eps) else {
             self.stats.labels_dominated += 1;
             return;
-        }
-        let before = front.len();
-        front.retain(|&i| {
-            let o = &mut labels[i as usize];
-            let beaten = dominates(t, soc, o.walk.t_s, o.walk.pack.soc, eps);
-            if beaten {
-                o.alive = false;
-            }
-            !beaten
-        });
-        self.stats.labels_dominated += (before - front.len()) as u64;
-        front.push(self.labels.len() as u32);
+        };
+        self.stats.labels_dominated += beaten;
         self.push(l);
     }
 
@@ -1887,20 +1872,12 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         let b = (l.walk.t_s / self.settings.bucket_s) as usize;
         let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
         let eps = self.settings.soc_resolution;
-        let labels = &self.labels;
         let front = self.arrivals.entry(b).or_default();
-        let walk = |i: &u32| &labels[*i as usize].walk;
-        if front
-            .iter()
-            .any(|i| dominates(walk(i).t_s, walk(i).pack.soc, t, soc, eps))
-        {
+        let Some(beaten) = pareto_insert(front, &mut self.labels, &l, eps) else {
             self.stats.labels_dominated += 1;
             return;
-        }
-        let before = front.len();
-        front.retain(|i| !dominates(t, soc, walk(i).t_s, walk(i).pack.soc, eps));
-        self.stats.labels_dominated += (before - front.len()) as u64;
-        front.push(self.labels.len() as u32);
+        };
+        self.stats.labels_dominated += beaten;
         if soc >= FULL_SOC {
             self.full_at = Some(self.full_at.map_or(t, |f| f.min(t)));
         }
@@ -2149,6 +2126,31 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
 /// at most `eps` less charge.
 fn dominates(t_a: f64, soc_a: f64, t_b: f64, soc_b: f64, eps: f64) -> bool {
     t_a <= t_b && soc_a + eps >= soc_b
+}
+
+/// Inserts label `l` (to be stored next, at index `labels.len()`) into the Pareto
+/// `front` of label indices by [`dominates`]: None when a member dominates it;
+/// otherwise the members it dominates leave the front and are marked dead, and the
+/// number of them is returned.
+fn pareto_insert(front: &mut Vec<u32>, labels: &mut [Label], l: &Label, eps: f64) -> Option<u64> {
+    let (t, soc) = (l.walk.t_s, l.walk.pack.soc);
+    if front.iter().any(|&i| {
+        let o = &labels[i as usize].walk;
+        dominates(o.t_s, o.pack.soc, t, soc, eps)
+    }) {
+        return None;
+    }
+    let before = front.len();
+    front.retain(|&i| {
+        let o = &mut labels[i as usize];
+        let beaten = dominates(t, soc, o.walk.t_s, o.walk.pack.soc, eps);
+        if beaten {
+            o.alive = false;
+        }
+        !beaten
+    });
+    front.push(labels.len() as u32);
+    Some((before + 1 - front.len()) as u64)
 }
 
 /// Walks a route with holds and payload stops through the step arithmetic from `w0`
