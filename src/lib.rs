@@ -80,6 +80,7 @@
 
 pub mod battery;
 pub mod error;
+pub mod fastmath;
 pub mod limits;
 pub mod mission;
 pub mod plan;

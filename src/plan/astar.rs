@@ -46,7 +46,7 @@
 //! # Units
 //! Costs in the objective's units; lengths in metres; angles in radians.
 
-use crate::plan::cost::{Blocked, Objective, Step, StepModel, WheelBounds};
+use crate::plan::cost::{Blocked, Objective, ReducedBound, Step, StepModel};
 use crate::plan::queue::BucketQueue;
 use crate::terrain::Dem;
 
@@ -517,26 +517,24 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// weight `k`), from a label `g_from`, cannot beat the label `g_to`, so it need not be priced: a step costs at least the
     /// heuristic's bound of its displacement (contract 1 of [`super::cost`]), here taken
     /// a hair low (by 1e-12 relative) against rounding, so skipping it changes nothing.
-    /// Only for models with [`WheelBounds`] (otherwise the bound costs about as much as
-    /// the step).
+    /// Only for models with wheel-work bounds, through their [`ReducedBound`] (otherwise
+    /// the bound costs about as much as the step).
     #[inline(always)]
-    #[allow(clippy::too_many_arguments)]
     pub(super) fn cannot_improve(
         &self,
-        wheel: Option<&WheelBounds>,
+        wheel: Option<&ReducedBound>,
         di: &DirInfo,
         dz: f64,
-        k: f64,
         g_from: f64,
         g_to: f64,
     ) -> bool {
-        let Some(wb) = wheel else {
+        let Some(rb) = wheel else {
             return false;
         };
         if !g_to.is_finite() {
             return false;
         }
-        let lb = self.objective.lower_bound_wheel(wb, di.d_m, dz) - k * dz;
+        let lb = rb.of(di.d_m, dz);
         g_from + lb * (1.0 - 1e-12) >= g_to
     }
 
@@ -627,7 +625,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                             continue;
                         }
                         let dz = self.z(v) - z_u;
-                        if self.cannot_improve(toward.wheel.as_ref(), di, dz, k, gu, g_v) {
+                        if self.cannot_improve(toward.wheel.as_ref(), di, dz, gu, g_v) {
                             continue;
                         }
                         let g = &ws.g;
@@ -734,7 +732,8 @@ pub(super) struct Toward {
     dy: f64,
     diag: f64,
     k: f64,
-    pub(super) wheel: Option<WheelBounds>,
+    /// The folded bound, for models with wheel-work bounds.
+    pub(super) wheel: Option<ReducedBound>,
 }
 
 impl Toward {
@@ -755,7 +754,9 @@ impl Toward {
             dy: cs.dy_m,
             diag: cs.dx_m.hypot(cs.dy_m),
             k: p.objective.potential_per_m(p.model),
-            wheel: p.model.wheel_bounds(),
+            wheel: p.model.wheel_bounds().map(|wb| {
+                ReducedBound::new(&p.objective, &wb, p.objective.potential_per_m(p.model))
+            }),
         }
     }
 
@@ -785,10 +786,10 @@ impl Toward {
             self.z - p.z(v)
         };
         let b = match &self.wheel {
-            Some(wb) => p.objective.lower_bound_wheel(wb, d, dz),
-            None => p.objective.lower_bound(p.model, d, dz),
+            Some(rb) => rb.of(d, dz),
+            None => p.objective.lower_bound(p.model, d, dz) - self.k * dz,
         };
-        (b - self.k * dz).max(0.0)
+        b.max(0.0)
     }
 }
 

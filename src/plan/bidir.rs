@@ -273,7 +273,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             };
             if self
                 .p
-                .cannot_improve(self.to_goal.wheel.as_ref(), di, dz, self.k, gu, g_next)
+                .cannot_improve(self.to_goal.wheel.as_ref(), di, dz, gu, g_next)
             {
                 continue;
             }

@@ -184,6 +184,45 @@ impl WheelBounds {
     }
 }
 
+/// The reduced lower bound B(d, dz) − K·dz of [`Objective::lower_bound`] for a model
+/// with [`WheelBounds`], its constants folded once per search so that an evaluation is
+/// one square root and a few products (no divisions, no branches on the weights):
+/// with L = √(d² + dz²) and u = C_rr·d + dz,
+/// B − K·dz = a·L + (u > 0 ? b₊ : b₋)·u − K·dz,
+/// a = w_m + (w_s + w_J·P_hotel)/v_max, b₊ = w_J·m g/η, b₋ = w_J·ρ·m g.
+/// The same function as [`Objective::lower_bound`] minus K·dz, so the same bound (the
+/// arithmetic differs only in rounding, a few ulps; a test compares).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ReducedBound {
+    per_l: f64,
+    crr: f64,
+    up: f64,
+    down: f64,
+    k: f64,
+}
+
+impl ReducedBound {
+    /// Folds the objective `o`, the model's bounds `wb` and the potential weight `k`.
+    pub fn new(o: &Objective, wb: &WheelBounds, k: f64) -> ReducedBound {
+        ReducedBound {
+            per_l: o.per_m + (o.per_s + o.per_j * wb.hotel_w) / wb.v_max,
+            crr: wb.crr,
+            up: o.per_j * wb.weight_n / wb.eta,
+            down: o.per_j * wb.weight_n * wb.rho,
+            k,
+        }
+    }
+
+    /// B(d, dz) − K·dz for horizontal length `d_m` and rise `dz_m`.
+    #[inline(always)]
+    pub fn of(&self, d_m: f64, dz_m: f64) -> f64 {
+        let l = (d_m * d_m + dz_m * dz_m).sqrt();
+        let u = self.crr * d_m + dz_m;
+        let b = if u > 0.0 { self.up } else { self.down };
+        self.per_l * l + b * u - self.k * dz_m
+    }
+}
+
 /// What the route minimises: a weighted sum of slope length (per metre), driving time
 /// (per second) and energy (per joule). The named objectives set one weight to 1.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -245,24 +284,71 @@ impl Objective {
         b
     }
 
-    /// [`Self::lower_bound`] for a model with [`WheelBounds`]: the same number to the bit,
-    /// with one square root.
-    #[inline]
-    pub fn lower_bound_wheel(&self, wb: &WheelBounds, d_m: f64, dz_m: f64) -> f64 {
-        let l = (d_m * d_m + dz_m * dz_m).sqrt();
-        let mut b = self.per_m * l;
-        if self.per_s > 0.0 {
-            b += self.per_s * (l / wb.v_max);
-        }
-        if self.per_j > 0.0 {
-            b += self.per_j * wb.energy_with_length_j(d_m, dz_m, l);
-        }
-        b
-    }
-
     /// The potential weight K of the Johnson reweighting c' = c − K·dz (cost per metre of
     /// rise that every step is guaranteed to carry).
     pub fn potential_per_m<M: StepModel + ?Sized>(&self, m: &M) -> f64 {
         self.per_j * m.regen_bound_j_per_m()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A model that is its wheel bounds (for [`Objective::lower_bound`]).
+    struct Bounds(WheelBounds);
+
+    impl StepModel for Bounds {
+        fn step(&self, _: &Step) -> Result<StepEnergy, Blocked> {
+            Err(Blocked::Traction)
+        }
+        fn energy_lower_bound_j(&self, d_m: f64, dz_m: f64) -> f64 {
+            self.0.energy_j(d_m, dz_m)
+        }
+        fn time_lower_bound_s(&self, d_m: f64, dz_m: f64) -> f64 {
+            self.0.time_s(d_m, dz_m)
+        }
+        fn regen_bound_j_per_m(&self) -> f64 {
+            self.0.rho * self.0.weight_n
+        }
+    }
+
+    /// The folded bound is `lower_bound − K·dz` to within rounding, for every objective,
+    /// with and without regeneration, uphill, downhill and flat.
+    #[test]
+    fn folded_bound_equals_the_lower_bound_less_the_potential() {
+        let mix = Objective {
+            per_m: 0.3,
+            per_s: 2.0,
+            per_j: 1e-3,
+        };
+        let mut checked = 0;
+        for rho in [0.0, 0.35] {
+            let m = Bounds(WheelBounds {
+                weight_n: 40.0 * 9.81,
+                crr: 0.08,
+                eta: 0.7,
+                rho,
+                hotel_w: 25.0,
+                v_max: 0.8,
+            });
+            for o in [Objective::DISTANCE, Objective::TIME, Objective::ENERGY, mix] {
+                let k = o.potential_per_m(&m);
+                let rb = ReducedBound::new(&o, &m.0, k);
+                for i in 0..400 {
+                    let d = 0.5 + (i % 20) as f64 * 0.7;
+                    let dz = (i / 20) as f64 * 0.4 - 4.0;
+                    let want = o.lower_bound(&m, d, dz) - k * dz;
+                    let got = rb.of(d, dz);
+                    let scale = o.lower_bound(&m, d, dz).abs() + (k * dz).abs();
+                    assert!(
+                        (got - want).abs() <= 1e-14 * scale,
+                        "{o:?} rho {rho} d {d} dz {dz}: {got} against {want}"
+                    );
+                    checked += 1;
+                }
+            }
+        }
+        assert_eq!(checked, 3200);
     }
 }

@@ -13,6 +13,6 @@ pub mod smooth;
 pub mod tilt;
 
 pub use astar::{CellFlags, Connectivity, GridPath, Planner, TiltLimits, Unreachable, Workspace};
-pub use cost::{Blocked, Objective, Step, StepEnergy, StepModel, WheelBounds};
+pub use cost::{Blocked, Objective, ReducedBound, Step, StepEnergy, StepModel, WheelBounds};
 pub use error::PlanError;
 pub use route::{plan_route, ProfileRow, Route, RoutePoint, RouteSummary};

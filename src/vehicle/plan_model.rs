@@ -17,9 +17,9 @@
 //! # Speed
 //! The planner evaluates tens of millions of steps. On firm ground with a constant drive
 //! efficiency and no power cap, [`RoverStepModel`] uses the closed form of
-//! [`Rover::step_cost`] with every limit compared as a tangent (one `atan`, for the speed
-//! law, and one square root per step); elsewhere it calls `step_cost` itself. A test
-//! checks the two agree on random steps.
+//! [`Rover::step_cost`] with every limit compared as a tangent (one arc tangent, for the
+//! speed law, by [`crate::fastmath::atan`], one square root and one division per step);
+//! elsewhere it calls `step_cost` itself. A test checks the two agree on random steps.
 //!
 //! # Units
 //! Joules, seconds, metres.
@@ -35,11 +35,14 @@ use crate::vehicle::step::Blocked;
 struct Firm {
     weight_n: f64,
     crr: f64,
-    eta: f64,
+    /// 1 / drive efficiency.
+    inv_eta: f64,
     rho: f64,
     hotel_w: f64,
     v_max: f64,
-    speed: SpeedLaw,
+    /// The speed law's floor and 1 / its zero-speed pitch (0 and 0: constant speed).
+    min_fraction: f64,
+    inv_zero_speed_pitch: f64,
     mu: f64,
     tan_climb: f64,
     tan_descent: f64,
@@ -58,11 +61,21 @@ impl Firm {
         Some(Firm {
             weight_n: r.weight_n(),
             crr: r.rolling_resistance,
-            eta: r.drive_efficiency,
+            inv_eta: 1.0 / r.drive_efficiency,
             rho: r.regen_fraction,
             hotel_w: r.hotel_power_w,
             v_max: r.max_speed_m_s,
-            speed: r.speed_law,
+            min_fraction: match r.speed_law {
+                SpeedLaw::Constant => 1.0,
+                SpeedLaw::Linear { min_fraction, .. } => min_fraction,
+            },
+            inv_zero_speed_pitch: match r.speed_law {
+                SpeedLaw::Constant => 0.0,
+                SpeedLaw::Linear {
+                    zero_speed_pitch_rad,
+                    ..
+                } => 1.0 / zero_speed_pitch_rad,
+            },
             mu: r.ground_friction,
             tan_climb: r.max_climb_rad.tan(),
             tan_descent: r.max_descent_rad.tan(),
@@ -103,13 +116,17 @@ impl Firm {
         }
         let work = self.weight_n * (self.crr * step.d_m + step.dz_m);
         let drive = if work > 0.0 {
-            work / self.eta
+            work * self.inv_eta
         } else {
             self.rho * work
         };
-        let speed = match self.speed {
-            SpeedLaw::Constant => self.v_max,
-            law => law.speed_m_s(self.v_max, s.atan()),
+        // SpeedLaw::speed_m_s with the division by the zero-speed pitch as a product
+        // (the same to within an ulp; the test below compares).
+        let speed = if self.inv_zero_speed_pitch == 0.0 {
+            self.v_max
+        } else {
+            let f = 1.0 - crate::fastmath::atan(s).abs() * self.inv_zero_speed_pitch;
+            self.v_max * f.max(self.min_fraction)
         };
         let time_s = step.length_m() / speed;
         Ok(StepEnergy {
