@@ -229,6 +229,8 @@ pub(super) struct DirInfo {
     pub(super) delta: isize,
     /// Horizontal length, metres.
     pub(super) d_m: f64,
+    /// 1 / `d_m` (the slope is a product in the hot loop).
+    pub(super) inv_d_m: f64,
     pub(super) heading_rad: f64,
     /// Flank pairs (left, right) as index offsets, with their separation across the
     /// heading (metres, right minus left), and the (dc, dr) offsets for edge checks.
@@ -267,6 +269,7 @@ pub(super) fn dir_table(dem: &Dem) -> [DirInfo; 16] {
             dr: dr as i64,
             delta: dr as isize * w + dc as isize,
             d_m: d,
+            inv_d_m: 1.0 / d,
             heading_rad: crate::units::wrap_azimuth_rad(ex.atan2(ny)),
             flanks,
             flank_delta,
@@ -436,7 +439,7 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
                 }
             }
         }
-        let s = dz / di.d_m;
+        let s = dz * di.inv_d_m;
         // Limits compared as tangents: atan is monotone, so s > tan(limit) ⇔ pitch > limit,
         // and |roll| > limit ⇔ t² > tan²(limit)·(1 + s²) (plan::tilt).
         if s > tan.up {
@@ -557,14 +560,14 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
     /// The bucket width of the searches' queues ([`super::queue::BucketQueue`]): 1/512
     /// of a flat step's cost, so that the window of buckets spans 32 flat steps, more
     /// than the keys queued at once spread (chosen by instruction counts on the 1024 ×
-    /// 1024 bench: narrower buckets keep the served heap small, a window too short
+    /// 1024 bench: narrower buckets keep the served bucket small, a window too short
     /// sends entries to the overflow list).
     pub(super) fn queue_width(&self) -> f64 {
         let cs = self.dem.cell_size();
         let flat = self
             .objective
             .lower_bound(self.model, cs.dx_m.min(cs.dy_m), 0.0);
-        flat / 512.0
+        flat / 2048.0
     }
 
     /// Reduced-cost A* from `start` to `goal` on one thread. `ws` is reused across calls.

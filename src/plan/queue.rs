@@ -1,44 +1,55 @@
 //! A monotone priority queue for the planner's f64 keys: buckets of a fixed key width
-//! over a circular window, with an exact binary heap for the bucket being served
-//! ([`BucketQueue`]). It replaced a radix heap (Ahuja, Mehlhorn, Orlin and Tarjan, JACM
-//! 37(2), 1990), in which an entry moved up to 16 times between buckets: here an entry
-//! moves once into its bucket and once into the heap (instruction counts in
+//! over a circular window, the bucket being served sorted ([`BucketQueue`]). It replaced
+//! a radix heap (Ahuja, Mehlhorn, Orlin and Tarjan, JACM 37(2), 1990), in which an entry
+//! moved up to 16 times between buckets: here an entry moves once, into its bucket,
+//! which is sorted in place when its turn comes (instruction counts in
 //! benches/results/2026-12-02-route-search.txt).
 
-/// (key high bits, key low bits, value): 12 bytes instead of the 16 a `(u64, u32)` pair
-/// takes with its padding.
-type Entry = [u32; 3];
+/// An entry as one integer whose order is the pop order reversed: the complement of the
+/// key's bits (positive f64 keys order as their bits) above the complement of the value,
+/// so that sorting ascending and popping from the end gives the smallest key first and,
+/// among equal keys, the smallest value (a cell index) first. One integer compare per
+/// step of a sort.
+type Entry = u128;
 
 #[inline]
 fn entry(key: u64, value: u32) -> Entry {
-    [(key >> 32) as u32, key as u32, value]
+    (u128::from(!key) << 32) | u128::from(!value)
 }
 
 #[inline]
-fn key_of(e: &Entry) -> u64 {
-    (u64::from(e[0]) << 32) | u64::from(e[1])
+fn key_of(e: Entry) -> u64 {
+    !((e >> 32) as u64)
 }
 
-/// A monotone priority queue of (f64 key, u32 value) by buckets of a fixed key width
-/// with an exact heap for the current bucket.
+#[inline]
+fn value_of(e: Entry) -> u32 {
+    !(e as u32)
+}
+
+/// A monotone priority queue of (f64 key, u32 value) by buckets of a fixed key width,
+/// the current bucket sorted.
 ///
 /// Method: a bucket queue in the manner of Dial ("Algorithm 360: shortest-path forest
 /// with topological ordering", CACM 12(11), 1969), with buckets of width Δ over a
 /// circular window of [`RING`] buckets, keys beyond the window in an overflow list, and
-/// the entries of the bucket being served in a binary heap, so that entries leave in
-/// exact key order (not only bucket order): the bucket index ⌊(k − k₀)/Δ⌋ is monotone in
-/// the key, so bucket order is key order, and the heap orders within a bucket. It needs
-/// monotone keys (no key below the last popped is pushed, up to
-/// rounding: such a key is raised to the last popped). Each entry is moved once into
-/// its bucket and once into the heap, which then holds about one bucket's entries.
+/// the bucket being served sorted by key (in reverse, popped from its end; equal keys
+/// by value), so that
+/// entries leave in exact key order (not only bucket order): the bucket index
+/// ⌊(k − k₀)/Δ⌋ is monotone in the key, so bucket order is key order, and the sort
+/// orders within a bucket; an entry pushed into the bucket being served is inserted at
+/// its place. It needs monotone keys (no key below the last popped is pushed, up to
+/// rounding: such a key is raised to the last popped). A served bucket's storage is
+/// swapped with the emptied one of the bucket before it, so entries are moved once and
+/// allocations circulate instead of being made anew.
 #[derive(Debug, Clone)]
 pub struct BucketQueue {
     width: f64,
     inv: f64,
     origin: f64,
-    /// The bucket being served (its entries are in `near`).
+    /// The bucket being served (its entries are in `near`, sorted in reverse pop order).
     cur: u64,
-    near: std::collections::BinaryHeap<Near>,
+    near: Vec<Entry>,
     ring: Vec<Vec<Entry>>,
     occupied: [u64; RING / 64],
     /// Entries at or beyond bucket `cur + RING`, and the smallest bucket among them.
@@ -49,27 +60,12 @@ pub struct BucketQueue {
     started: bool,
 }
 
-/// Entries a served bucket's allocation may hold and still be kept for reuse.
-const KEEP: usize = 64;
+/// Entries a bucket's allocation keeps when it goes back to the window (more would
+/// leave every bucket with the capacity of the fullest moment it ever served).
+const KEEP: usize = 32;
 
 /// Buckets in the window (a power of two).
 pub const RING: usize = 16384;
-
-/// An entry of the served bucket, ordered for a min-heap on its key.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-struct Near(u64, u32);
-
-impl Ord for Near {
-    fn cmp(&self, o: &Self) -> std::cmp::Ordering {
-        o.0.cmp(&self.0)
-    }
-}
-
-impl PartialOrd for Near {
-    fn partial_cmp(&self, o: &Self) -> Option<std::cmp::Ordering> {
-        Some(self.cmp(o))
-    }
-}
 
 impl Default for BucketQueue {
     fn default() -> Self {
@@ -150,7 +146,9 @@ impl BucketQueue {
         let idx = (((k - self.origin) * self.inv) as i64).max(0) as u64;
         self.len += 1;
         if idx <= self.cur {
-            self.near.push(Near(bits, value));
+            let e = entry(bits, value);
+            let at = self.near.partition_point(|&x| x < e);
+            self.near.insert(at, e);
         } else if idx - self.cur < RING as u64 {
             let slot = idx as usize & (RING - 1);
             self.ring[slot].push(entry(bits, value));
@@ -165,10 +163,10 @@ impl BucketQueue {
     #[inline]
     pub fn pop(&mut self) -> Option<(f64, u32)> {
         loop {
-            if let Some(Near(k, v)) = self.near.pop() {
+            if let Some(e) = self.near.pop() {
                 self.len -= 1;
-                self.last = f64::from_bits(k);
-                return Some((self.last, v));
+                self.last = f64::from_bits(key_of(e));
+                return Some((self.last, value_of(e)));
             }
             if self.len == 0 {
                 return None;
@@ -177,7 +175,7 @@ impl BucketQueue {
         }
     }
 
-    /// Moves to the next non-empty bucket and fills the heap from it.
+    /// Moves to the next non-empty bucket and sorts it into `near` (which is empty).
     fn advance(&mut self) {
         let next = self.next_slot().or_else(|| {
             // The window is empty: move it to the overflow's first bucket.
@@ -191,16 +189,10 @@ impl BucketQueue {
         self.cur += d;
         let slot = self.cur as usize & (RING - 1);
         self.occupied[slot / 64] &= !(1 << (slot % 64));
-        let mut entries = std::mem::take(&mut self.ring[slot]);
-        self.near
-            .extend(entries.iter().map(|e| Near(key_of(e), e[2])));
-        // A small allocation is kept for reuse, a large one dropped: kept, every bucket of
-        // the window would hold the capacity of its fullest moment.
-        if entries.capacity() <= KEEP {
-            entries.clear();
-            self.ring[slot] = entries;
-        }
+        std::mem::swap(&mut self.near, &mut self.ring[slot]);
+        self.ring[slot].shrink_to(KEEP);
         self.migrate();
+        self.near.sort_unstable();
     }
 
     /// The distance (1..RING) from `cur` to the next occupied bucket of the window.
@@ -235,7 +227,8 @@ impl BucketQueue {
             if idx < self.cur.saturating_add(RING as u64) {
                 self.far.swap_remove(i);
                 if idx <= self.cur {
-                    self.near.push(Near(key_of(&e), e[2]));
+                    // Unsorted here: `advance`, the only caller with such entries, sorts.
+                    self.near.push(e);
                 } else {
                     let slot = idx as usize & (RING - 1);
                     self.ring[slot].push(e);

@@ -98,16 +98,18 @@ impl Firm {
         if -s > self.tan_descent {
             return Err(PlanBlocked::PitchDown);
         }
-        let tan_roll_sq = t * t / (1.0 + s * s);
-        let lean_sq = s * s * (1.0 + tan_roll_sq);
+        // tan² roll = t²/(1 + s²) and lean² = s²(1 + tan² roll), compared multiplied out
+        // by 1 + s² > 0 (no division).
+        let (t2, c2) = (t * t, 1.0 + s * s);
+        let lean_c2 = s * s * (c2 + t2);
         let edge = if s >= 0.0 {
             self.tan_backward
         } else {
             self.tan_forward
         };
-        if tan_roll_sq > self.tan_roll * self.tan_roll
-            || tan_roll_sq >= self.tan_side * self.tan_side
-            || lean_sq >= edge * edge
+        if t2 > self.tan_roll * self.tan_roll * c2
+            || t2 >= self.tan_side * self.tan_side * c2
+            || lean_c2 >= edge * edge * c2
         {
             return Err(PlanBlocked::Roll);
         }
