@@ -21,31 +21,40 @@
 //! forward, c'(u, v) − p(u) + p(v) = ½(c' + h_t(v) − h_t(u)) + ½(c' − h_s(v) + h_s(u))
 //! ≥ 0, so both searches see non-negative costs, their keys never decrease, and the
 //! bucket queue serves both. Keys: forward g_f(v) + p(v), backward g_b(v) − p(v). With μ
-//! the best g_f(v) + g_b(v) over cells labelled by both, the searches stop once the two
+//! the best g_f(v) + g_b(v) found so far (next section), the searches stop once the two
 //! smallest queued keys sum to at least μ: every cell with forward distance below the
 //! forward top key is settled, and likewise backward, so on a path shorter than the two
 //! keys' sum there is a step u → w with u settled forward and w settled backward, whose
-//! relaxation gave w a forward label; its two labels then sum to that path's length,
-//! so μ already is at most it. (Rounding can end the search when the sums differ by a few
+//! relaxations gave w a forward label and u a backward one, each summing with the cell's
+//! own label to at most that path's length, so μ already is at most it. (Rounding can end the search when the sums differ by a few
 //! ulps; the planner's tolerance is 1e-9 relative.)
 //!
+//! # Meeting
+//! μ is kept over the cells *settled* by one side and labelled by the other: enough for
+//! the argument above, because of the step u → w there, whichever end was settled
+//! later (or both in the same round) is checked after the other end's relaxation gave
+//! it a label on the path (the other side's label of u is at most c(u, w) + g_b(w), and
+//! likewise for w), so μ is at most the path's length once both ends are checked.
+//!
 //! # Lock-step rounds (deterministic)
-//! The two threads never read each other's arrays while either writes: they run in
-//! rounds. In a round each side does a fixed amount of work in the order of its queue,
-//! counted as cells settled plus steps priced (with rounds cut by key thresholds, the
-//! two sides' time per round followed their steps priced, correlation 0.89, more than
-//! their cells settled, 0.62; the waits that remain, about a tenth of the time on this
-//! project's machine, did not shrink with the change and look like the machine's own
-//! noise); its state is then a prefix of its Dijkstra order, which is all the stopping
-//! rule needs. At a barrier each
-//! side checks the cells it labelled in the round against the other side's labels (μ,
-//! and the meeting cell, the smallest index among equal sums); at a second barrier both
-//! read the same two reports, update μ and decide to stop, identically. A round is
-//! 2 × [`ROUND_CELLS`] units, or 2/64 of the grid's cells when that is less (at least
-//! 16). Everything each thread does depends only on the data and on these counts, never
-//! on timing, so the route found is the same on every
-//! run and on one core or two (when several routes tie, it is one of them, not always
-//! the one the one-way search picks).
+//! Each thread reads and writes only its own cost array; they run in rounds, with one
+//! barrier per round. In round r each side first checks the cells the other side settled
+//! in round r − 1 (sent with their labels) against its own labels, then does a fixed
+//! amount of work in the order of its queue, counted as cells settled plus steps priced
+//! (with rounds cut by key thresholds, the two sides' time per round followed their
+//! steps priced, correlation 0.89, more than their cells settled, 0.62), and posts its
+//! settled cells, its best sum and its smallest queued key. After the barrier both read
+//! the same posts: the best sums of round r cover every pair of cells settled up to
+//! round r − 1 (by the argument of the previous section), so the stopping rule is
+//! applied to them with the smallest keys posted at the end of round r − 1, and both
+//! decide identically (the searches run one round past the point the rule first holds;
+//! a round is small). Posts are kept per round parity, so a side posting round r + 1
+//! never overwrites a post of round r the other has yet to read. The meeting cell is
+//! the smallest index among equal sums. A round is 2 × [`ROUND_CELLS`] units, or 2/64
+//! of the grid's cells when that is less (at least 16). Everything each thread does
+//! depends only on the data and on these counts, never on timing, so the route found is
+//! the same on every run and on one core or two (when several routes tie, it is one of
+//! them, not always the one the one-way search picks).
 //!
 //! # Memory and the route
 //! Two cost words per cell (8 bytes each, as in [`super::astar`]: a negative sign marks
@@ -57,7 +66,7 @@
 //! zero-cost steps, which a vehicle with rolling and hotel losses does not have), or no
 //! route exist, the one-way search runs instead and gives the route or its explanation.
 
-use std::sync::{Condvar, Mutex, RwLock};
+use std::sync::{Condvar, Mutex};
 
 use crate::plan::astar::{
     dir_table, is_closed, is_static_block, At, DirInfo, GridPath, Planner, TanLimits, Toward,
@@ -154,8 +163,8 @@ struct Side<'h> {
     heap: &'h mut BucketQueue,
     /// The first entry after the round's work, held for the next round.
     pending: Option<(f64, u32)>,
-    /// Cells labelled this round.
-    changed: Vec<u32>,
+    /// Cells settled this round, with their labels.
+    settled: Vec<(u32, f64)>,
     expanded: u64,
     /// Work units done: cells settled plus steps priced.
     work: u64,
@@ -172,12 +181,18 @@ impl Side<'_> {
     }
 }
 
-/// What a side tells the other at the end of a round.
-#[derive(Debug, Clone, Copy)]
-struct Report {
+/// What a side tells the other at the end of a round: the best sum it found checking
+/// the other side's cells of the round before, its smallest queued key, and the cells it
+/// settled.
+#[derive(Debug, Default)]
+struct Post {
     best: (f64, u32),
     top: f64,
+    settled: Vec<(u32, f64)>,
 }
+
+/// The posts of both sides, for each round parity (`[parity][side]`).
+type Board = Mutex<[[Post; 2]; 2]>;
 
 /// What both threads share: the planner and the constants of the search.
 struct Ctx<'p, 'a, M: StepModel + ?Sized> {
@@ -218,6 +233,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 continue;
             }
             st(g, u, -gu);
+            side.settled.push((x, gu));
             side.expanded += 1;
             side.work += 1;
             let at = self.p.at(u);
@@ -291,73 +307,79 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 let pot = self.potential(next, col, row);
                 side.heap
                     .push(if REV { gn - pot } else { gn + pot }, next as u32);
-                side.changed.push(next as u32);
             }
         }
     }
 
-    /// The best (sum, cell) over this round's labelled cells of a side.
-    fn check(&self, own: &[u64], other: &[u64], changed: &mut Vec<u32>) -> (f64, u32) {
+    /// The best (sum, cell) over the other side's settled cells `theirs` that this
+    /// side (`own`) has labelled.
+    fn check(&self, own: &[u64], theirs: &[(u32, f64)]) -> (f64, u32) {
         let mut best = (f64::INFINITY, u32::MAX);
-        for &x in changed.iter() {
-            let (a, b) = (ld(own, x as usize), ld(other, x as usize));
-            if a.is_finite() && b.is_finite() {
-                let s = (a.abs() + b.abs(), x);
+        for &(x, other) in theirs {
+            let a = ld(own, x as usize);
+            if a.is_finite() {
+                let s = (a.abs() + other, x);
                 if earlier(s, best) {
                     best = s;
                 }
             }
         }
-        changed.clear();
         best
     }
 
     /// One side's rounds until the stopping rule holds; returns μ and its cell. Each
-    /// side writes its own cost array only while it advances, and both read both only
-    /// while they check, between the barriers (the locks make the phases explicit).
+    /// side reads and writes only its own array `g`; what crosses is in `board`.
     fn rounds<const REV: bool>(
         &self,
         me: usize,
-        g: &[RwLock<Vec<u64>>; 2],
+        g: &mut [u64],
         side: &mut Side<'_>,
         barrier: &Rendezvous,
-        reports: &Mutex<[Report; 2]>,
+        board: &Board,
     ) -> (f64, u32) {
         let _leaving = BreakOnUnwind(barrier);
         let mut mu = (f64::INFINITY, u32::MAX);
         // The other side left by a panic: stop; its join passes the panic on.
         let gone = (f64::INFINITY, u32::MAX);
-        loop {
+        // The other side's settled cells of the round before, and the two smallest
+        // keys posted then.
+        let mut theirs: Vec<(u32, f64)> = Vec::new();
+        let mut tops_before = 0.0;
+        for round in 0usize.. {
+            let best = self.check(g, &theirs);
+            self.advance::<REV>(g, side);
             {
-                let mut own = g[me].write().unwrap_or_else(|e| e.into_inner());
-                self.advance::<REV>(&mut own, side);
+                let mut b = board.lock().unwrap_or_else(|e| e.into_inner());
+                let post = &mut b[round % 2][me];
+                post.best = best;
+                post.top = side.top();
+                // Hand the settled list over; take back the emptied one posted two
+                // rounds ago.
+                std::mem::swap(&mut post.settled, &mut side.settled);
+                side.settled.clear();
             }
             if !barrier.wait() {
                 return gone;
             }
-            let best = {
-                let own = g[me].read().unwrap_or_else(|e| e.into_inner());
-                let other = g[1 - me].read().unwrap_or_else(|e| e.into_inner());
-                self.check(&own, &other, &mut side.changed)
-            };
-            let report = Report {
-                best,
-                top: side.top(),
-            };
-            reports.lock().unwrap_or_else(|e| e.into_inner())[me] = report;
-            if !barrier.wait() {
-                return gone;
-            }
-            let both = *reports.lock().unwrap_or_else(|e| e.into_inner());
-            for r in &both {
-                if earlier(r.best, mu) {
-                    mu = r.best;
+            let tops = {
+                let mut b = board.lock().unwrap_or_else(|e| e.into_inner());
+                let posts = &mut b[round % 2];
+                for p in posts.iter() {
+                    if earlier(p.best, mu) {
+                        mu = p.best;
+                    }
                 }
-            }
-            if both[0].top + both[1].top >= mu.0 {
+                std::mem::swap(&mut theirs, &mut posts[1 - me].settled);
+                posts[0].top + posts[1].top
+            };
+            // The best sums just read cover the cells settled up to the round before,
+            // so the rule is applied with that round's smallest keys.
+            if round > 0 && tops_before >= mu.0 {
                 return mu;
             }
+            tops_before = tops;
         }
+        unreachable!("the rounds end by returning")
     }
 
     /// Traces the route from the meeting cell `m` back to the start (forward labels) or
@@ -417,7 +439,7 @@ fn side(heap: &mut BucketQueue, key: f64, cell: usize) -> Side<'_> {
     Side {
         heap,
         pending: None,
-        changed: vec![cell as u32],
+        settled: Vec::new(),
         expanded: 0,
         exhausted: false,
         work: 0,
@@ -485,7 +507,6 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         });
         st(&mut bi.g[0], start, 0.0);
         st(&mut bi.g[1], goal, 0.0);
-        let g = bi.g.each_mut().map(|v| RwLock::new(std::mem::take(v)));
         let w = self.dem.width();
         let [hf, hb] = &mut bi.heap;
         let width = self.queue_width();
@@ -496,21 +517,16 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         let mut fwd = side(hf, ctx.potential(start, sc, sr), start);
         let mut bwd = side(hb, -ctx.potential(goal, gc, gr), goal);
         let barrier = Rendezvous::default();
-        let reports = Mutex::new(
-            [Report {
-                best: (f64::INFINITY, u32::MAX),
-                top: 0.0,
-            }; 2],
-        );
+        let board = Board::default();
+        let [gf, gb] = &mut bi.g;
         let mu = std::thread::scope(|s| {
-            let back = s.spawn(|| ctx.rounds::<true>(1, &g, &mut bwd, &barrier, &reports));
-            let mu = ctx.rounds::<false>(0, &g, &mut fwd, &barrier, &reports);
+            let back = s.spawn(|| ctx.rounds::<true>(1, gb, &mut bwd, &barrier, &board));
+            let mu = ctx.rounds::<false>(0, gf, &mut fwd, &barrier, &board);
             if let Err(e) = back.join() {
                 std::panic::resume_unwind(e);
             }
             mu
         });
-        bi.g = g.map(|l| l.into_inner().unwrap_or_else(|e| e.into_inner()));
         if !mu.0.is_finite() {
             return None;
         }
