@@ -211,7 +211,15 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
     /// The forward potential p(v) (module doc).
     #[inline]
     fn potential(&self, v: usize, col: i64, row: i64) -> f64 {
-        0.5 * (self.to_goal.bound(self.p, v, col, row) - self.from_start.bound(self.p, v, col, row))
+        self.potential_at(self.p.z(v), col, row)
+    }
+
+    /// [`Self::potential`] of a cell with elevation `z_v` given.
+    #[inline(always)]
+    fn potential_at(&self, z_v: f64, col: i64, row: i64) -> f64 {
+        let (c, r) = (col as f64, row as f64);
+        0.5 * (self.to_goal.bound_at(self.p, z_v, c, r)
+            - self.from_start.bound_at(self.p, z_v, c, r))
     }
 
     /// Settles queued cells in order until the round's work is done (`REV`: backward),
@@ -282,11 +290,8 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
                 continue;
             }
             // The rise of the step from → to; `at` is one of its ends.
-            let dz = if REV {
-                z_at - self.p.z(from.cell)
-            } else {
-                self.p.z(to) - z_at
-            };
+            let z_next = self.p.z(next);
+            let dz = if REV { z_at - z_next } else { z_next - z_at };
             if self
                 .p
                 .cannot_improve(self.to_goal.wheel.as_ref(), di, dz, gu, g_next)
@@ -302,9 +307,9 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             };
             side.work += 1;
             let gn = gu + c;
-            if gn < ld(g, next) {
+            if gn < g_next {
                 st(g, next, gn);
-                let pot = self.potential(next, col, row);
+                let pot = self.potential_at(z_next, col, row);
                 side.heap
                     .push(if REV { gn - pot } else { gn + pot }, next as u32);
             }

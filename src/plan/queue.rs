@@ -133,7 +133,7 @@ impl BucketQueue {
     }
 
     /// Pushes `value` with priority `key` (raised to the last popped key).
-    #[inline]
+    #[inline(always)]
     pub fn push(&mut self, key: f64, value: u32) {
         let k = key.max(self.last);
         if !self.started {
