@@ -221,6 +221,16 @@ impl ReducedBound {
         let b = if u > 0.0 { self.up } else { self.down };
         self.per_l * l + b * u - self.k * dz_m
     }
+
+    /// [`Self::of`] with the slope length L replaced by the horizontal length d ≤ L: a
+    /// lower bound again, and of the same convex, positively homogeneous form (d is a
+    /// norm of the displacement), so consistent as a heuristic; no square root.
+    #[inline(always)]
+    pub fn of_flat(&self, d_m: f64, dz_m: f64) -> f64 {
+        let u = self.crr * d_m + dz_m;
+        let b = if u > 0.0 { self.up } else { self.down };
+        self.per_l * d_m + b * u - self.k * dz_m
+    }
 }
 
 /// What the route minimises: a weighted sum of slope length (per metre), driving time
@@ -345,6 +355,12 @@ mod tests {
                         (got - want).abs() <= 1e-14 * scale,
                         "{o:?} rho {rho} d {d} dz {dz}: {got} against {want}"
                     );
+                    // The flat form is lower (d ≤ L) and differs only in the L term.
+                    let flat = rb.of_flat(d, dz);
+                    assert!(flat <= got + 1e-14 * scale, "{o:?} d {d} dz {dz}");
+                    let l = (d * d + dz * dz).sqrt();
+                    let per_l = o.per_m + (o.per_s + o.per_j * m.0.hotel_w) / m.0.v_max;
+                    assert!(((got - flat) - per_l * (l - d)).abs() <= 1e-12 * scale);
                     checked += 1;
                 }
             }
