@@ -6,9 +6,8 @@
 //! and Q of degree 5, relative error about 2e-16 in the library's own tests); the
 //! coefficients are from memory and are checked here against std's `f64::atan` (the
 //! platform's libm) on a dense sweep and at the reduction boundaries (at most 1 ulp
-//! apart there). The route planner
-//! calls it once per priced step (the speed law), where the libm call took about 7 % of
-//! the search's instructions.
+//! apart there). The route planner calls it once per priced step (the speed law), where
+//! the libm call took about 7 % of the search's instructions.
 
 use std::f64::consts::{FRAC_PI_2, FRAC_PI_4};
 

@@ -524,8 +524,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         Some((self.objective.cost(len, &e) - k * step.dz_m).max(0.0))
     }
 
-    /// True when the step in direction `di` with rise `dz` (reduced by the potential
-    /// weight `k`), from a label `g_from`, cannot beat the label `g_to`, so it need not be priced: a step costs at least the
+    /// True when the step in direction `di` with rise `dz`, from a label `g_from`, cannot
+    /// beat the label `g_to`, so it need not be priced: a step costs at least the
     /// heuristic's bound of its displacement (contract 1 of [`super::cost`];
     /// [`ReducedBound::of_flat`], without a square root), here taken
     /// a hair low (by 1e-12 relative) against rounding, so skipping it changes nothing.
