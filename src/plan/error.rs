@@ -72,11 +72,55 @@ fn unreachable_message(from: &str, to: &str, u: &Unreachable, nearest: (f64, f64
     } else {
         format!("the way is closed by the {}", reasons.join(", "))
     };
+    let reached = if u.reached == 1 {
+        format!("the one cell the rover can reach (the {from} itself)")
+    } else {
+        format!("the {} cells the rover can reach", u.reached)
+    };
     format!(
         "no drivable route from the {from} to the {to}: {closed}, counting the steps out of \
-         the {} cells the rover can reach. The reachable cell nearest the {to} is ({:.2}, \
-         {:.2}), {:.1} m from it. Fix: relax the limit named first (for example \
-         --max-pitch-deg), allow 16-connected steps, or move the {to}",
-        u.reached, nearest.0, nearest.1, u.nearest.1
+         {reached}. The reachable cell nearest the {to} is ({:.2}, {:.2}), {:.1} m from it. \
+         Fix: relax the limit named first (for example --max-pitch-deg), allow 16-connected \
+         steps, or move the {to}",
+        nearest.0, nearest.1, u.nearest.1
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn unreachable(reached: u64) -> String {
+        PlanError::Unreachable {
+            from: "start".into(),
+            to: "goal".into(),
+            detail: Unreachable {
+                closed_by: vec![(Blocked::PitchUp, 3), (Blocked::Roll, 1)],
+                nearest: (7, 12.5),
+                reached,
+            },
+            nearest_xy: (1.0, 2.0),
+        }
+        .to_string()
+    }
+
+    /// The message names the limits with their shares, the cells reached (one cell in
+    /// the singular, as the start itself), the nearest cell and the fix.
+    #[test]
+    fn unreachable_names_the_limits_the_reach_and_the_fix() {
+        let many = unreachable(40);
+        assert!(many.contains("uphill pitch limit (75 %)"), "{many}");
+        assert!(
+            many.contains("out of the 40 cells the rover can reach"),
+            "{many}"
+        );
+        assert!(many.contains("(1.00, 2.00), 12.5 m from it"), "{many}");
+        assert!(many.contains("Fix: relax the limit named first"), "{many}");
+        let one = unreachable(1);
+        assert!(
+            one.contains("out of the one cell the rover can reach (the start itself)"),
+            "{one}"
+        );
+        assert!(!one.contains("1 cells"), "{one}");
+    }
 }
