@@ -61,6 +61,12 @@ fn json_geojson_and_profile_agree() {
     }
     assert_eq!(v["objective"], "energy");
     assert_eq!(v["rover"]["mass_kg"], 120.0, "default rover printed");
+    // The default rover's limits (20°, 20°, 15°: src/vehicle/rover.rs) as given, not as
+    // taken through radians (15° read 14.999999999999998 before).
+    assert_eq!(
+        v["limits"],
+        serde_json::json!({"max_pitch_up_deg": 20.0, "max_pitch_down_deg": 20.0, "max_roll_deg": 15.0})
+    );
     let cells = v["cells"].as_array().unwrap();
     // Start and goal cells: map (300, 300) on 4 m cells with the origin at (0, 2048).
     assert_eq!(cells[0], serde_json::json!([75, 437]));

@@ -228,6 +228,12 @@ fn cell_flags(dem: &Dem, max_roughness_m: Option<f64>) -> Result<CellFlags, Erro
     Ok(flags)
 }
 
+/// A limit in degrees to 1e-9°, so that a limit given as 15° (and taken through
+/// radians and the rover's stability rule) reads 15, not 14.999999999999998.
+fn limit_deg(rad: f64) -> f64 {
+    (rad.to_degrees() * 1e9).round() / 1e9
+}
+
 /// The `--json` document: the stable keys first, then context.
 pub fn summary_json(route: &Route, objective: Objective, rover: &Rover, l: &TiltLimits) -> Value {
     let s = &route.summary;
@@ -242,9 +248,9 @@ pub fn summary_json(route: &Route, objective: Objective, rover: &Rover, l: &Tilt
         "cells": route.cells(),
         "cost": s.cost,
         "limits": {
-            "max_pitch_up_deg": l.max_pitch_up_rad.to_degrees(),
-            "max_pitch_down_deg": l.max_pitch_down_rad.to_degrees(),
-            "max_roll_deg": l.max_roll_rad.to_degrees(),
+            "max_pitch_up_deg": limit_deg(l.max_pitch_up_rad),
+            "max_pitch_down_deg": limit_deg(l.max_pitch_down_rad),
+            "max_roll_deg": limit_deg(l.max_roll_rad),
         },
         "rover": rover_json(rover),
     })
