@@ -439,7 +439,12 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
 }
 
 /// A side whose queue holds its start `cell` with `key`.
+///
+/// The start keys are p(s) = h_t(s)/2 and −p(t) = h_s(t)/2, never negative (h_s(s) and
+/// h_t(t) are 0); the clamp only turns −0 into 0. A potential with a negative start key
+/// would break the queue's order here, since later keys are clamped to the last served.
 fn side(heap: &mut BucketQueue, key: f64, cell: usize) -> Side<'_> {
+    debug_assert!(key >= 0.0, "a start key below 0: {key}");
     heap.push(key.max(0.0), cell as u32);
     Side {
         heap,
