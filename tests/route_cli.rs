@@ -67,6 +67,10 @@ fn json_geojson_and_profile_agree() {
         v["limits"],
         serde_json::json!({"max_pitch_up_deg": 20.0, "max_pitch_down_deg": 20.0, "max_roll_deg": 15.0})
     );
+    assert_eq!(
+        v["rover"]["max_roll_deg"], 15.0,
+        "the rover's own limits likewise"
+    );
     let cells = v["cells"].as_array().unwrap();
     // Start and goal cells: map (300, 300) on 4 m cells with the origin at (0, 2048).
     assert_eq!(cells[0], serde_json::json!([75, 437]));

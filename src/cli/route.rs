@@ -140,6 +140,12 @@ pub fn load_rover(path: Option<&Path>) -> Result<Rover, Error> {
     })
 }
 
+/// A limit in degrees to 1e-9°, so that a limit given as 15° (and taken through
+/// radians and the rover's stability rule) reads 15, not 14.999999999999998.
+fn limit_deg(rad: f64) -> f64 {
+    (rad.to_degrees() * 1e9).round() / 1e9
+}
+
 /// The rover's keys as JSON (what `--json` prints under `rover`).
 pub fn rover_json(r: &Rover) -> Value {
     json!({
@@ -157,9 +163,9 @@ pub fn rover_json(r: &Rover) -> Value {
         "wheelbase_m": r.wheelbase_m,
         "track_m": r.track_m,
         "cg_height_m": r.cg_height_m,
-        "max_climb_deg": r.max_climb_rad.to_degrees(),
-        "max_descent_deg": r.max_descent_rad.to_degrees(),
-        "max_roll_deg": r.roll_limit_rad().to_degrees(),
+        "max_climb_deg": limit_deg(r.max_climb_rad),
+        "max_descent_deg": limit_deg(r.max_descent_rad),
+        "max_roll_deg": limit_deg(r.roll_limit_rad()),
     })
 }
 
@@ -226,12 +232,6 @@ fn cell_flags(dem: &Dem, max_roughness_m: Option<f64>) -> Result<CellFlags, Erro
         }
     }
     Ok(flags)
-}
-
-/// A limit in degrees to 1e-9°, so that a limit given as 15° (and taken through
-/// radians and the rover's stability rule) reads 15, not 14.999999999999998.
-fn limit_deg(rad: f64) -> f64 {
-    (rad.to_degrees() * 1e9).round() / 1e9
 }
 
 /// The `--json` document: the stable keys first, then context.
