@@ -72,7 +72,7 @@ fn single_axis_mast_matches_pvlib_on_level_ground() {
         let plane = mount.plane(&Attitude::default(), z, a).unwrap();
         let aoi = rad_to_deg(plane.cos_incidence(z, a).clamp(-1.0, 1.0).acos());
         assert!(
-            (rad_to_deg(plane.tilt_rad) - num(&r, "surface_tilt_deg")).abs() < 1e-6,
+            (rad_to_deg(plane.tilt_rad()) - num(&r, "surface_tilt_deg")).abs() < 1e-6,
             "{r:?}"
         );
         assert!((aoi - num(&r, "aoi_deg")).abs() < 1e-6, "{r:?}: aoi {aoi}");
@@ -93,19 +93,19 @@ fn body_fixed_panel_follows_attitude() {
         roll_rad: 0.0,
     };
     let p = deck.plane(&pitched, 0.5, 0.5).unwrap();
-    assert!((rad_to_deg(p.tilt_rad) - 10.0).abs() < 1e-9);
-    assert!((rad_to_deg(p.azimuth_rad) - 180.0).abs() < 1e-9);
+    assert!((rad_to_deg(p.tilt_rad()) - 10.0).abs() < 1e-9);
+    assert!((rad_to_deg(p.azimuth_rad()) - 180.0).abs() < 1e-9);
     let rolled = Attitude {
         heading_rad: deg_to_rad(90.0),
         pitch_rad: 0.0,
         roll_rad: deg_to_rad(15.0),
     };
     let p = deck.plane(&rolled, 0.5, 0.5).unwrap();
-    assert!((rad_to_deg(p.tilt_rad) - 15.0).abs() < 1e-9);
+    assert!((rad_to_deg(p.tilt_rad()) - 15.0).abs() < 1e-9);
     assert!(
-        (rad_to_deg(p.azimuth_rad) - 180.0).abs() < 1e-9,
+        (rad_to_deg(p.azimuth_rad()) - 180.0).abs() < 1e-9,
         "{}",
-        rad_to_deg(p.azimuth_rad)
+        rad_to_deg(p.azimuth_rad())
     );
     // A panel tilted 30° toward the right of the nose, heading north, faces east.
     let side = Mount::FixedTilt {
@@ -113,8 +113,8 @@ fn body_fixed_panel_follows_attitude() {
         relative_azimuth_rad: deg_to_rad(90.0),
     };
     let p = side.plane(&Attitude::default(), 0.5, 0.5).unwrap();
-    assert!((rad_to_deg(p.azimuth_rad) - 90.0).abs() < 1e-9);
-    assert!((rad_to_deg(p.tilt_rad) - 30.0).abs() < 1e-9);
+    assert!((rad_to_deg(p.azimuth_rad()) - 90.0).abs() < 1e-9);
+    assert!((rad_to_deg(p.tilt_rad()) - 30.0).abs() < 1e-9);
 }
 
 /// Issue 5 analytic wall: a 30 m wall along the north edge of a flat plain, observer

@@ -16,6 +16,9 @@ pub struct Curve {
     ys: Vec<f64>,
     /// `cum[i]` = integral of the curve from `xs[0]` to `xs[i]`.
     cum: Vec<f64>,
+    /// (n − 1)/(x_last − x_first): the segment of x on evenly spaced nodes, the first
+    /// guess of [`Curve::segment`].
+    per_x: f64,
 }
 
 /// Why a set of nodes cannot make a curve.
@@ -45,7 +48,8 @@ impl Curve {
         for i in 1..xs.len() {
             cum[i] = cum[i - 1] + 0.5 * (ys[i] + ys[i - 1]) * (xs[i] - xs[i - 1]);
         }
-        Ok(Curve { xs, ys, cum })
+        let per_x = (xs.len() - 1) as f64 / (xs[xs.len() - 1] - xs[0]);
+        Ok(Curve { xs, ys, cum, per_x })
     }
 
     /// The node abscissae.
@@ -58,14 +62,23 @@ impl Curve {
         &self.ys
     }
 
-    /// Index `i` of the segment `[xs[i], xs[i+1]]` that holds `x` (clamped to the ends).
+    /// Index `i` of the segment `[xs[i], xs[i+1]]` that holds `x`, for `x` strictly
+    /// inside the node range: the largest i with xs[i] ≤ x. Guessed as if the nodes
+    /// were evenly spaced, then moved to the segment that holds x (no moves on evenly
+    /// spaced tables such as the OCV curves, a walk on others): the same index a binary
+    /// search gives, without its unpredictable branches (every pack step asks several
+    /// times).
     fn segment(&self, x: f64) -> usize {
-        let n = self.xs.len();
-        match self.xs.partition_point(|&v| v <= x) {
-            0 => 0,
-            k if k >= n => n - 2,
-            k => k - 1,
+        let last = self.xs.len() - 2;
+        let guess = ((x - self.xs[0]) * self.per_x) as usize;
+        let mut i = guess.min(last);
+        while i > 0 && self.xs[i] > x {
+            i -= 1;
         }
+        while i < last && self.xs[i + 1] <= x {
+            i += 1;
+        }
+        i
     }
 
     /// y at `x`, linear between nodes, held at the end values outside them.
@@ -122,6 +135,35 @@ mod tests {
         assert!((c.mean(0.0, 1.0) - 1.0).abs() < 1e-15);
         assert_eq!(c.eval(-1.0), 0.0);
         assert_eq!(c.eval(9.0), 2.0);
+    }
+
+    /// The guessed segment is the one a binary search over the nodes finds (the largest
+    /// i with xs[i] <= x), on evenly and unevenly spaced nodes, at the nodes themselves
+    /// and between them.
+    #[test]
+    fn segment_equals_the_binary_search() {
+        let mut rng = crate::terrain::synth::SplitMix64::new(11);
+        for case in 0..200 {
+            let n = 2 + (rng.next_f64() * 30.0) as usize;
+            let mut xs = vec![rng.next_f64() * 10.0 - 5.0];
+            for _ in 1..n {
+                // Evenly spaced for a third of the cases, else gaps over three decades.
+                let gap = if case % 3 == 0 {
+                    0.01
+                } else {
+                    10f64.powf(rng.next_f64() * 3.0 - 2.0)
+                };
+                xs.push(xs[xs.len() - 1] + gap);
+            }
+            let c = Curve::new(xs.clone(), vec![0.0; n]).unwrap();
+            let mut probes: Vec<f64> = xs[1..n - 1].to_vec();
+            let span = xs[n - 1] - xs[0];
+            probes.extend((0..50).map(|_| xs[0] + span * rng.next_f64()));
+            for x in probes.into_iter().filter(|&x| x > xs[0] && x < xs[n - 1]) {
+                let k = xs.partition_point(|&v| v <= x);
+                assert_eq!(c.segment(x), (k - 1).min(n - 2), "case {case}, x {x}");
+            }
+        }
     }
 
     #[test]

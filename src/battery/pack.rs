@@ -530,6 +530,7 @@ impl Pack {
         let (mut v, mut i, mut soc1, mut on_s) = (self.ocv_v(s.soc), 0.0, s.soc, req.dt_s);
         // The OCV integral at the step's start, the same in every iteration.
         let i_start = self.ocv_pack.integral_to(s.soc);
+        let mut i_end = i_start;
         for _ in 0..MEAN_OCV_MAX_ITER {
             let (p_w, f) = self.discharge_power(v, r, i_max, req.power_w);
             flags = f;
@@ -540,7 +541,8 @@ impl Pack {
             } else {
                 (soc_end, req.dt_s, false)
             };
-            let v_new = self.cached_mean_ocv_v(soc1, s.soc, None, Some(i_start));
+            i_end = self.ocv_pack.integral_to(soc1);
+            let v_new = self.cached_mean_ocv_v(soc1, s.soc, Some(i_end), Some(i_start));
             let done = (v_new - v).abs() < MEAN_OCV_TOL_V;
             v = v_new;
             if done {
@@ -557,6 +559,7 @@ impl Pack {
                 soc1,
                 on_s,
                 eta: 1.0,
+                integrals: (i_start, i_end),
             },
             flags,
         )
@@ -616,6 +619,7 @@ impl Pack {
         let mut flags = PackFlags::default();
         let (mut v, mut i, mut soc1, mut on_s) = (self.ocv_v(s.soc), 0.0, s.soc, req.dt_s);
         let i_start = self.ocv_pack.integral_to(s.soc);
+        let mut i_end = i_start;
         for _ in 0..MEAN_OCV_MAX_ITER {
             let (p_w, f) = self.charge_power(v, r, i_max, -req.power_w);
             flags = f;
@@ -626,7 +630,8 @@ impl Pack {
             } else {
                 (soc_end, req.dt_s, false)
             };
-            let v_new = self.cached_mean_ocv_v(s.soc, soc1, Some(i_start), None);
+            i_end = self.ocv_pack.integral_to(soc1);
+            let v_new = self.cached_mean_ocv_v(s.soc, soc1, Some(i_start), Some(i_end));
             let done = (v_new - v).abs() < MEAN_OCV_TOL_V;
             v = v_new;
             if done {
@@ -643,6 +648,7 @@ impl Pack {
                 soc1,
                 on_s,
                 eta,
+                integrals: (i_start, i_end),
             },
             flags,
         )
@@ -691,7 +697,8 @@ impl Pack {
             resistance_ohm: f.r,
             loss_resistive_wh,
             loss_coulombic_wh,
-            stored_delta_wh: self.stored_energy_wh(f.soc1) - self.stored_energy_wh(s.soc),
+            // stored_energy_wh(soc1) − stored_energy_wh(soc), from the integrals at hand.
+            stored_delta_wh: self.capacity_ah * f.integrals.1 - self.capacity_ah * f.integrals.0,
             shortfall_w: (req.power_w - power_w).max(0.0),
             unaccepted_w: (power_w - req.power_w).max(0.0),
             flags,
@@ -713,6 +720,8 @@ struct Flow {
     on_s: f64,
     /// Coulombic efficiency applied to charge.
     eta: f64,
+    /// The OCV curve's integral at the step's start SOC and at `soc1`.
+    integrals: (f64, f64),
 }
 
 fn check_request(req: &StepRequest) -> Result<(), BatteryError> {

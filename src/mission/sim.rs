@@ -860,6 +860,30 @@ pub(crate) fn poa_on(
     poa_shaded(setup, sky, att, shade.as_ref())
 }
 
+/// [`poa_on`] for the steps `ks` at one cell and attitude, W/m² per step (0 for a step
+/// without light): the cell's shade is looked up once and, unless the mount tracks the
+/// sun, the panels' plane is computed once, so the numbers are those of [`poa_on`] for
+/// each step, to the bit.
+pub(crate) fn poa_series<'k>(
+    setup: &SimSetup<'_>,
+    skies: impl Iterator<Item = Option<&'k SkyNow>>,
+    att: &Attitude,
+    col: usize,
+    row: usize,
+) -> Vec<f64> {
+    let shade = setup.horizon.and_then(|h| SiteShade::new(h, col, row));
+    // The plane of a mount that does not follow the sun (the sun's place is not used).
+    let fixed = (!setup.mount.tracks_sun()).then(|| setup.mount.plane(att, 0.0, 0.0));
+    skies
+        .map(|sky| {
+            sky.map_or(0.0, |sky| match fixed {
+                Some(plane) => poa_on_plane(setup, sky, plane, shade.as_ref()),
+                None => poa_shaded(setup, sky, att, shade.as_ref()),
+            })
+        })
+        .collect()
+}
+
 /// [`poa_on`] with the cell's shade given (None: no horizon map, or off the map).
 fn poa_shaded(
     setup: &SimSetup<'_>,
@@ -868,10 +892,21 @@ fn poa_shaded(
     shade: Option<&SiteShade<'_>>,
 ) -> f64 {
     let sun = &sky.sun;
-    let Some(plane) = setup
+    let plane = setup
         .mount
-        .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad)
-    else {
+        .plane(att, sun.apparent_zenith_rad, sun.azimuth_rad);
+    poa_on_plane(setup, sky, plane, shade)
+}
+
+/// [`poa_shaded`] with the panels' plane given (None: no plane, a zero body normal).
+fn poa_on_plane(
+    setup: &SimSetup<'_>,
+    sky: &SkyNow,
+    plane: Option<crate::sun::transposition::Plane>,
+    shade: Option<&SiteShade<'_>>,
+) -> f64 {
+    let sun = &sky.sun;
+    let Some(plane) = plane else {
         return 0.0;
     };
     let s = &setup.sky;

@@ -283,6 +283,14 @@ pub(super) fn dir_table(dem: &Dem) -> [DirInfo; 16] {
     })
 }
 
+/// A planner's direction table and tilt limits as tangents, for
+/// [`Planner::geometry_in`].
+#[derive(Debug, Clone, Copy)]
+pub struct StepTable {
+    dirs: [DirInfo; 16],
+    tan: TanLimits,
+}
+
 /// Tilt limits as tangents, for comparisons without trigonometry in the hot loop.
 #[derive(Debug, Clone, Copy)]
 pub(super) struct TanLimits {
@@ -355,9 +363,25 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
 
     /// The step from `from` in direction `dir`, checked against the grid, the cell
     /// blocks and the tilt limits (not yet against the vehicle).
+    ///
+    /// Builds the grid's direction table on each call; code that asks for many steps
+    /// builds a [`StepTable`] once and calls [`Self::geometry_in`].
     pub fn geometry(&self, from: usize, dir: usize) -> Result<Step, Blocked> {
-        let table = dir_table(self.dem);
-        self.step_geometry(self.at(from), &table[dir], &TanLimits::of(&self.limits))
+        self.geometry_in(&self.step_table(), from, dir)
+    }
+
+    /// The constants [`Self::geometry_in`] needs, computed once.
+    pub fn step_table(&self) -> StepTable {
+        StepTable {
+            dirs: dir_table(self.dem),
+            tan: TanLimits::of(&self.limits),
+        }
+    }
+
+    /// [`Self::geometry`] with the table given (`table` from [`Self::step_table`] of
+    /// this planner).
+    pub fn geometry_in(&self, table: &StepTable, from: usize, dir: usize) -> Result<Step, Blocked> {
+        self.step_geometry(self.at(from), &table.dirs[dir], &table.tan)
     }
 
     /// Row-major index of (col + dc, row + dr), or None outside the grid.

@@ -238,6 +238,7 @@ fn profile<M: StepModel + ?Sized>(
         expanded_nodes: expanded,
         cost,
     };
+    let table = p.step_table();
     for pair in cells.windows(2) {
         let (dc, dr) = (
             (pair[1] % w) as i32 - (pair[0] % w) as i32,
@@ -248,7 +249,7 @@ fn profile<M: StepModel + ?Sized>(
             .position(|&o| o == (dc, dr))
             .expect("consecutive route cells are neighbours");
         let step = p
-            .geometry(pair[0], dir)
+            .geometry_in(&table, pair[0], dir)
             .expect("a planned step is drivable");
         let e = p.model.step(&step).expect("a planned step is drivable");
         s.length_m += step.length_m();

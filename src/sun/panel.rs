@@ -263,6 +263,12 @@ pub fn sun_vector_enu(zenith_rad: f64, azimuth_rad: f64) -> Vec3 {
 }
 
 impl Mount {
+    /// Whether the plane depends on the sun's place (a tracker); otherwise
+    /// [`Self::plane`] ignores its sun arguments.
+    pub fn tracks_sun(&self) -> bool {
+        matches!(self, Mount::SingleAxis { .. })
+    }
+
     /// The panel plane for vehicle attitude `att` and a sun at (`zenith_rad`,
     /// `azimuth_rad`); `None` only for a zero body normal.
     pub fn plane(&self, att: &Attitude, zenith_rad: f64, azimuth_rad: f64) -> Option<Plane> {

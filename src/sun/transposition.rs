@@ -64,9 +64,12 @@ pub enum SkyModel {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Plane {
     /// Tilt from horizontal, radians (0 = facing up, π/2 = vertical).
-    pub tilt_rad: f64,
+    tilt_rad: f64,
     /// Azimuth the surface faces, radians clockwise from north.
-    pub azimuth_rad: f64,
+    azimuth_rad: f64,
+    /// sin and cos of the tilt, computed once (every irradiance term needs them).
+    sin_tilt: f64,
+    cos_tilt: f64,
 }
 
 impl Plane {
@@ -88,10 +91,28 @@ impl Plane {
             "a finite azimuth in degrees",
             "give the azimuth the panel faces, clockwise from north",
         )?;
-        Ok(Plane {
+        Ok(Plane::of(tilt_rad, azimuth_rad))
+    }
+
+    /// The plane with its tilt's sine and cosine.
+    fn of(tilt_rad: f64, azimuth_rad: f64) -> Plane {
+        let (sin_tilt, cos_tilt) = tilt_rad.sin_cos();
+        Plane {
             tilt_rad,
             azimuth_rad: crate::units::wrap_azimuth_rad(azimuth_rad),
-        })
+            sin_tilt,
+            cos_tilt,
+        }
+    }
+
+    /// Tilt from horizontal, radians (0 = facing up, π/2 = vertical).
+    pub fn tilt_rad(&self) -> f64 {
+        self.tilt_rad
+    }
+
+    /// Azimuth the surface faces, radians clockwise from north.
+    pub fn azimuth_rad(&self) -> f64 {
+        self.azimuth_rad
     }
 
     /// The plane whose unit normal is `n` (east, north, up); `None` for a zero vector.
@@ -106,15 +127,12 @@ impl Plane {
         } else {
             n[0].atan2(n[1])
         };
-        Some(Plane {
-            tilt_rad: up.acos(),
-            azimuth_rad: crate::units::wrap_azimuth_rad(azimuth),
-        })
+        Some(Plane::of(up.acos(), azimuth))
     }
 
     /// Unit normal in east-north-up coordinates.
     pub fn normal_enu(&self) -> [f64; 3] {
-        let (sb, cb) = self.tilt_rad.sin_cos();
+        let (sb, cb) = (self.sin_tilt, self.cos_tilt);
         let (sg, cg) = self.azimuth_rad.sin_cos();
         [sb * sg, sb * cg, cb]
     }
@@ -123,7 +141,7 @@ impl Plane {
     /// azimuth `azimuth_rad` (may be negative: sun behind the plane).
     pub fn cos_incidence(&self, zenith_rad: f64, azimuth_rad: f64) -> f64 {
         let (sz, cz) = zenith_rad.sin_cos();
-        let (sb, cb) = self.tilt_rad.sin_cos();
+        let (sb, cb) = (self.sin_tilt, self.cos_tilt);
         cz * cb + sz * sb * (azimuth_rad - self.azimuth_rad).cos()
     }
 }
@@ -174,7 +192,7 @@ const PEREZ_1990: [[f64; 6]; 8] = [
 const PEREZ_BIN_EDGES: [f64; 7] = [1.065, 1.23, 1.5, 1.95, 2.8, 4.5, 6.2];
 
 fn isotropic_sky(dhi: f64, plane: &Plane) -> f64 {
-    dhi * 0.5 * (1.0 + plane.tilt_rad.cos())
+    dhi * 0.5 * (1.0 + plane.cos_tilt)
 }
 
 fn hay_davies_sky(irr: &Components, plane: &Plane, sun: &SunGeometry, cos_theta: f64) -> f64 {
@@ -184,7 +202,7 @@ fn hay_davies_sky(irr: &Components, plane: &Plane, sun: &SunGeometry, cos_theta:
     } else {
         0.0
     };
-    let iso = (irr.dhi_w_m2 * (1.0 - ai) * 0.5 * (1.0 + plane.tilt_rad.cos())).max(0.0);
+    let iso = (irr.dhi_w_m2 * (1.0 - ai) * 0.5 * (1.0 + plane.cos_tilt)).max(0.0);
     iso + (irr.dhi_w_m2 * ai * rb).max(0.0)
 }
 
@@ -205,7 +223,7 @@ fn perez_sky(irr: &Components, plane: &Plane, sun: &SunGeometry, cos_theta: f64)
     let f2 = f[3] + f[4] * delta + f[5] * z;
     let a = cos_theta.max(0.0);
     let b = z.cos().max(85f64.to_radians().cos());
-    let (sb, cb) = plane.tilt_rad.sin_cos();
+    let (sb, cb) = (plane.sin_tilt, plane.cos_tilt);
     (irr.dhi_w_m2 * (0.5 * (1.0 - f1) * (1.0 + cb) + f1 * a / b + f2 * sb)).max(0.0)
 }
 
@@ -226,6 +244,6 @@ pub fn plane_of_array(
     PoaComponents {
         beam_w_m2: (irr.dni_w_m2 * cos_theta).max(0.0),
         sky_diffuse_w_m2: sky,
-        ground_w_m2: irr.ghi_w_m2 * albedo * 0.5 * (1.0 - plane.tilt_rad.cos()),
+        ground_w_m2: irr.ghi_w_m2 * albedo * 0.5 * (1.0 - plane.cos_tilt),
     }
 }

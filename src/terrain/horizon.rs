@@ -40,6 +40,9 @@
 //! # Units
 //! Angles in radians in memory; files and reports in degrees.
 
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::OnceLock;
+
 use rayon::prelude::*;
 
 use crate::progress::Progress;
@@ -64,6 +67,58 @@ pub struct HorizonMap {
     height: usize,
     /// `angles[k * cells + cell]`, radians.
     angles: Vec<f32>,
+    /// The sky-view factors computed so far (a cache: see [`SkyViewCache`]).
+    sky_view: SkyViewCache,
+}
+
+/// Sky-view factors of the cells asked for so far, each computed once (N cosines a
+/// cell) and then read: a simulation asks for a cell's factor at every step it spends
+/// there. Per cell the bits of the factor, XOR [`SkyViewCache::EMPTY`], so that the
+/// zero a new slot holds reads as "not computed" (a factor is a finite positive number,
+/// never that NaN pattern). The slots are atomics so that threads sharing a map can
+/// fill them; two threads computing the same cell store the same bits. The vector is
+/// allocated on the first request. Derived data: equality and cloning look at nothing
+/// but the angles (a clone starts empty).
+#[derive(Default)]
+struct SkyViewCache(OnceLock<Vec<AtomicU64>>);
+
+impl SkyViewCache {
+    /// Bits of a quiet NaN that no factor has: a slot holding 0 decodes to it.
+    const EMPTY: u64 = 0x7ff8_5ca1_ab1e_0001;
+
+    fn get_or(&self, cells: usize, cell: usize, compute: impl FnOnce() -> f64) -> f64 {
+        let slots = self
+            .0
+            .get_or_init(|| (0..cells).map(|_| AtomicU64::new(0)).collect());
+        let bits = slots[cell].load(Ordering::Relaxed) ^ Self::EMPTY;
+        if bits != Self::EMPTY {
+            return f64::from_bits(bits);
+        }
+        let v = compute();
+        slots[cell].store(v.to_bits() ^ Self::EMPTY, Ordering::Relaxed);
+        v
+    }
+}
+
+impl Clone for SkyViewCache {
+    fn clone(&self) -> Self {
+        SkyViewCache::default()
+    }
+}
+
+impl PartialEq for SkyViewCache {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
+}
+
+impl std::fmt::Debug for SkyViewCache {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let filled = self.0.get().map_or(0, |v| {
+            v.iter().filter(|a| a.load(Ordering::Relaxed) != 0).count()
+        });
+        write!(f, "SkyViewCache({filled} cells)")
+    }
 }
 
 impl HorizonMap {
@@ -114,11 +169,16 @@ impl HorizonMap {
     /// Frew, "Rapid calculation of terrain parameters for radiation modeling from digital
     /// elevation data", IEEE Trans. Geoscience and Remote Sensing 28(5), 1990, eq. 7 for a
     /// level surface, summed over sectors).
+    ///
+    /// Computed once per cell and kept (the map's cache), so asking again is a load.
     pub fn sky_view_factor(&self, col: usize, row: usize) -> f64 {
-        let sum: f64 = (0..self.sectors)
-            .map(|k| self.angle(col, row, k).cos().powi(2))
-            .sum();
-        sum / self.sectors as f64
+        let cells = self.width * self.height;
+        self.sky_view.get_or(cells, row * self.width + col, || {
+            let sum: f64 = (0..self.sectors)
+                .map(|k| self.angle(col, row, k).cos().powi(2))
+                .sum();
+            sum / self.sectors as f64
+        })
     }
 
     /// Sector k as a grid of degrees with the DEM's georeference (for writing).
@@ -268,6 +328,7 @@ pub fn horizon_map(
         width: dem.width(),
         height: dem.height(),
         angles,
+        sky_view: SkyViewCache::default(),
     })
 }
 
@@ -380,6 +441,7 @@ pub fn horizon_naive(dem: &Dem, sectors: usize) -> Result<HorizonMap, TerrainErr
         width: dem.width(),
         height: dem.height(),
         angles,
+        sky_view: SkyViewCache::default(),
     })
 }
 

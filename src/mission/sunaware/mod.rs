@@ -210,7 +210,7 @@ use crate::mission::resolve::Season;
 use crate::mission::runner::{season_start, SeasonResult};
 use crate::mission::sim::{simulate, EndCondition, Hold, SimError, SimSetup, Stop};
 use crate::mission::verdict::summarize;
-use crate::plan::astar::DIRECTIONS;
+use crate::plan::astar::{StepTable, DIRECTIONS};
 use crate::plan::route::{locate, route_along};
 use crate::plan::{Blocked, PlanError, Planner, Route, RoutePoint, StepModel};
 use crate::sun::panel::Attitude;
@@ -1512,6 +1512,8 @@ struct Label {
 
 struct Search<'p, 'w, 's, 'a, M: StepModel + ?Sized> {
     planner: &'p Planner<'p, M>,
+    /// The planner's step table, built once ([`Planner::geometry_in`]).
+    steps: StepTable,
     lat: Lattice,
     walker: &'w Walker<'s, 'a>,
     settings: SunAwareSettings,
@@ -1579,6 +1581,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         let buckets = (walker.clock.horizon_s() / settings.bucket_s).ceil() as usize + 1;
         Search {
             planner,
+            steps: planner.step_table(),
             lat,
             walker,
             settings: *settings,
@@ -1616,7 +1619,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
                 .iter()
                 .position(|&o| o == (dc, dr))
                 .expect("a unit offset is one of the 8 directions");
-            let step = self.planner.geometry(at, dir)?;
+            let step = self.planner.geometry_in(&self.steps, at, dir)?;
             let e = self.planner.model.step(&step)?;
             out.push(FineStep {
                 pose: Pose {
@@ -1751,7 +1754,7 @@ impl<'p, 'w, 's, 'a, M: StepModel + ?Sized> Search<'p, 'w, 's, 'a, M> {
         if let Some(g) = self.wait_cache.get(&key) {
             return (g.clone(), k0);
         }
-        let g: std::rc::Rc<[f64]> = (k0..last).map(|k| self.walker.panel_w(pose, k)).collect();
+        let g: std::rc::Rc<[f64]> = self.walker.panel_series_w(pose, k0, last).into();
         self.wait_cache.insert(key, g.clone());
         (g, k0)
     }

@@ -39,8 +39,8 @@ use crate::battery::pack::{PackState, StepRequest};
 use crate::battery::thermal::{ThermalInput, ThermalState};
 use crate::mission::ledger::Ledger;
 use crate::mission::sim::{
-    in_window, local_day, local_seconds, poa_on, sky_now, DriveHours, SimError, SimSetup, SkyNow,
-    SHORTFALL_TOLERANCE,
+    in_window, local_day, local_seconds, poa_on, poa_series, sky_now, DriveHours, SimError,
+    SimSetup, SkyNow, SHORTFALL_TOLERANCE,
 };
 use crate::sun::panel::Attitude;
 use crate::sun::position::{SunTrack, DEFAULT_NODE_STEP_S};
@@ -320,6 +320,21 @@ impl Walker<'_, '_> {
             .as_ref()
             .map_or(0.0, |sky| poa_on(s, sky, &pose.att, pose.col, pose.row));
         s.panel.power_at_w(poa, x.air_c, s.sky.wind_m_s)
+    }
+
+    /// [`Self::panel_w`] for the steps `k0..k1` at one pose, computed together (the
+    /// cell's shade and the panels' plane once; the same numbers).
+    pub(crate) fn panel_series_w(&self, pose: &Pose, k0: usize, k1: usize) -> Vec<f64> {
+        let s = self.setup;
+        let skies = (k0..k1).map(|k| self.clock.steps.get(k).and_then(|x| x.sky.as_ref()));
+        let poa = poa_series(s, skies, &pose.att, pose.col, pose.row);
+        (k0..k1)
+            .zip(poa)
+            .map(|(k, poa)| match self.clock.steps.get(k) {
+                Some(x) => s.panel.power_at_w(poa, x.air_c, s.sky.wind_m_s),
+                None => 0.0,
+            })
+            .collect()
     }
 
     /// The simulation step holding instant `t_s`.
