@@ -152,13 +152,15 @@ fn numeric_axis_and_broken_lines_render() {
     c.bands.clear();
     let svg = render_svg(&c).unwrap();
     assert!(svg.contains("distance (m)"));
-    // The NaN splits the line in two: one polyline more than the same line unbroken.
+    // Lines are drawn a segment at a time. The NaN splits the line in two: the lone
+    // first point (a dot) and the segment from 20 to 30 m, against the three segments of
+    // the same line unbroken.
     let mut whole = c.clone();
     whole.series[0].points[1].1 = 2.0;
     let unbroken = render_svg(&whole).unwrap();
     assert_eq!(
-        svg.matches("<polyline").count(),
-        unbroken.matches("<polyline").count() + 1
+        svg.matches("<polyline").count() + 1,
+        unbroken.matches("<polyline").count()
     );
 }
 
@@ -259,4 +261,79 @@ fn sun_plot_needs_a_known_extension() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr)
         .contains("--plot day.jpg: expected a file ending in .png or .svg"));
+}
+
+/// A series that jumps irregularly from point to point stays inside the plot area: no
+/// pixel of its colour in the title band above it or in the axis band below it (drawn
+/// as one wide polyline, its mitred joins shot spikes out past both).
+#[test]
+fn a_sharply_swinging_series_stays_inside_the_plot_area() {
+    let mut c = rover_day();
+    let t0 = 1_940_000_400.0;
+    c.series = vec![Series {
+        name: "drive power".into(),
+        // Irregular jumps between 78 and 135 W every 20 s, as a driving rover's power.
+        points: {
+            let mut rng = sunward::terrain::synth::SplitMix64::new(5);
+            (0..2000)
+                .map(|i| (t0 + 20.0 * i as f64, 78.0 + 57.0 * rng.next_f64()))
+                .collect()
+        },
+        side: Side::Left,
+        color: Some([255, 0, 255]),
+    }];
+    c.bands.clear();
+    let (info, px) = decode(&render_png(&c).unwrap());
+    let w = info.width as usize;
+    let magenta = |row: usize| {
+        px[row * w * 3..(row + 1) * w * 3]
+            .chunks(3)
+            .filter(|p| p[0] > 200 && p[1] < 80 && p[2] > 200)
+            .count()
+    };
+    let inside: usize = (0..info.height as usize).map(magenta).sum();
+    assert!(inside > 1000, "the series was drawn: {inside} pixels");
+    let top: usize = (0..30).map(magenta).sum();
+    let bottom: usize = (info.height as usize - 45..info.height as usize)
+        .map(magenta)
+        .sum();
+    assert_eq!(
+        (top, bottom),
+        (0, 0),
+        "pixels above and below the plot area"
+    );
+}
+
+/// All-zero data (a day of polar night's power) get an axis from 0 to 1 with distinct
+/// tick labels, not a sliver whose ticks all read 0.
+#[test]
+fn flat_data_get_a_readable_axis() {
+    let mut c = rover_day();
+    c.series[0].points.iter_mut().for_each(|p| p.1 = 0.0);
+    let svg = render_svg(&c).unwrap();
+    let ticks: Vec<&str> = svg
+        .split("</text>")
+        .filter_map(|t| t.rsplit('>').next())
+        .map(str::trim)
+        .collect();
+    assert!(ticks.contains(&"0.5") && ticks.contains(&"1"), "{ticks:?}");
+}
+
+/// Up to the palette's size the series take its colours; beyond, every series of the
+/// chart still gets a colour of its own (twelve months on one chart).
+#[test]
+fn many_series_get_distinct_colours() {
+    use sunward::report::plot::{auto_color, PALETTE};
+    assert_eq!(auto_color(2, 5), PALETTE[2]);
+    let twelve: Vec<[u8; 3]> = (0..12).map(|i| auto_color(i, 12)).collect();
+    for (i, a) in twelve.iter().enumerate() {
+        for b in &twelve[i + 1..] {
+            let d: i32 = a
+                .iter()
+                .zip(b)
+                .map(|(x, y)| (*x as i32 - *y as i32).abs())
+                .sum();
+            assert!(d > 40, "{a:?} and {b:?} too close");
+        }
+    }
 }

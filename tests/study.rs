@@ -216,11 +216,12 @@ fn a_sweep_case_gives_the_verdict_of_run() {
     ]);
     ok(&out);
     let run_dir = dir.path().join("run");
+    // The season named in lower case: --season ignores case.
     ok(&sunward(&[
         "run".as_ref(),
         mission().as_os_str(),
         "--season".as_ref(),
-        "July".as_ref(),
+        "july".as_ref(),
         "--out".as_ref(),
         run_dir.as_os_str(),
         "-q".as_ref(),

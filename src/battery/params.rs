@@ -101,3 +101,75 @@ pub const DEFAULT_CAPACITY_WH: f64 = 1000.0;
 
 /// Default nominal voltage when no size is given, V (see [`PackParams::nominal_voltage_v`]).
 pub const DEFAULT_NOMINAL_VOLTAGE_V: f64 = 25.6;
+
+impl PackParams {
+    /// The pack's rated energy, Wh, however it is sized: `capacity_wh` as given; for a
+    /// pack sized by cells, series cells × the chemistry's mean cell OCV (the same
+    /// voltage the pack model uses to turn an energy into cells) × cells in parallel ×
+    /// cell capacity; the default when no size is given. None when the size is given
+    /// only in part (the pack model refuses such a file).
+    pub fn rated_energy_wh(&self) -> Option<f64> {
+        match (
+            self.capacity_wh,
+            self.cells_series,
+            self.cells_parallel,
+            self.cell_capacity_ah,
+        ) {
+            (Some(wh), None, None, None) => Some(wh),
+            (None, Some(ns), Some(np), Some(q)) => {
+                Some(f64::from(ns) * self.chemistry.preset().mean_ocv_v() * f64::from(np) * q)
+            }
+            (None, None, None, None) if self.nominal_voltage_v.is_none() => {
+                Some(DEFAULT_CAPACITY_WH)
+            }
+            _ => None,
+        }
+    }
+
+    /// The pack's nominal voltage, V, however it is sized (None as for
+    /// [`Self::rated_energy_wh`]).
+    pub fn rated_voltage_v(&self) -> Option<f64> {
+        match (self.nominal_voltage_v, self.cells_series) {
+            (Some(v), None) => Some(v),
+            (None, Some(ns)) => Some(f64::from(ns) * self.chemistry.preset().mean_ocv_v()),
+            (None, None) if self.capacity_wh.is_none() => Some(DEFAULT_NOMINAL_VOLTAGE_V),
+            _ => None,
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::battery::chemistry::Chemistry;
+    use crate::battery::pack::Pack;
+
+    /// The rated energy is the pack model's own energy from 0 to 100 % SOC, however the
+    /// pack is sized; a size given in part has none.
+    #[test]
+    fn rated_energy_is_the_pack_models_energy() {
+        let cells = PackParams {
+            chemistry: Chemistry::Lfp,
+            cells_series: Some(8),
+            cells_parallel: Some(6),
+            cell_capacity_ah: Some(3.0),
+            ..PackParams::default()
+        };
+        let energy = PackParams {
+            chemistry: Chemistry::Nmc,
+            capacity_wh: Some(1200.0),
+            nominal_voltage_v: Some(48.0),
+            ..PackParams::default()
+        };
+        for p in [cells, energy, PackParams::default()] {
+            let wh = p.rated_energy_wh().unwrap();
+            let model = Pack::new(&p).unwrap().stored_energy_wh(1.0);
+            assert!((wh - model).abs() < 1e-9 * model, "{wh} against {model}");
+        }
+        let part = PackParams {
+            cells_series: Some(8),
+            ..PackParams::default()
+        };
+        assert_eq!(part.rated_energy_wh(), None);
+    }
+}

@@ -75,10 +75,13 @@ fn summary(path: &Path, m: &Mission, w: usize, h: usize) -> String {
         Sky::Clearness { .. } => "clear sky scaled by monthly clearness",
         Sky::Csv { .. } => "a weather file",
     };
-    let capacity = m
-        .battery
-        .capacity_wh
-        .map_or("the default".to_string(), |c| format!("{c} Wh"));
+    let b = &m.battery;
+    let capacity = match (b.rated_energy_wh(), b.cells_series, b.cells_parallel) {
+        (Some(wh), Some(ns), Some(np)) => format!("{wh:.0} Wh ({ns}s{np}p)"),
+        (Some(wh), ..) if b.capacity_wh.is_none() => format!("the default {wh:.0} Wh"),
+        (Some(wh), ..) => format!("{wh} Wh"),
+        (None, ..) => "of an incomplete size".to_string(),
+    };
     format!(
         "{}: OK. Site \"{}\" at {:.3}°, {:.3}° (UTC{}), terrain {} ({w} x {h} cells); route \
          from ({}, {}) to ({}, {}) through {} waypoint(s) and {} site(s); rover {} kg with \

@@ -561,11 +561,18 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             ),
             a(
                 "battery",
-                format!(
-                    "{} Wh {}",
-                    m.battery.capacity_wh.unwrap_or(f64::NAN),
-                    m.battery.chemistry.preset().name
-                ),
+                match (m.battery.cells_series, m.battery.cells_parallel) {
+                    (Some(ns), Some(np)) => format!(
+                        "{:.0} Wh {} ({ns}s{np}p)",
+                        m.battery.rated_energy_wh().unwrap_or(f64::NAN),
+                        m.battery.chemistry.preset().name
+                    ),
+                    _ => format!(
+                        "{} Wh {}",
+                        m.battery.rated_energy_wh().unwrap_or(f64::NAN),
+                        m.battery.chemistry.preset().name
+                    ),
+                },
                 "mission file; OCV tables from PyBaMM parameter sets",
             ),
             a(
@@ -614,7 +621,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
                  "utc_offset": m.site.utc_offset.to_string()},
         "terrain_file": terrain_label(m, mission_dir),
         "route_length_m": route.summary.length_m,
-        "battery_capacity_wh": m.battery.capacity_wh,
+        "battery_capacity_wh": m.battery.rated_energy_wh(),
         "panel_area_m2": m.panels.panel.area_m2,
         "step_s": m.step_s,
         "deadline_s": m.policy.deadline_s,

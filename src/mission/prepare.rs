@@ -449,12 +449,17 @@ pub fn sim_setup<'a>(
     }
 }
 
-/// The seasons whose name contains one of `only` (all when `only` is empty).
+/// The seasons whose name contains one of `only`, ignoring case (all when `only` is
+/// empty): `--season june` picks "June", `--season winter` "winter solstice".
 pub fn select_seasons(m: &Mission, only: &[String]) -> Result<Vec<Season>, Error> {
+    let only: Vec<String> = only.iter().map(|o| o.to_lowercase()).collect();
     let seasons: Vec<Season> = m
         .seasons
         .iter()
-        .filter(|s| only.is_empty() || only.iter().any(|o| s.name.contains(o.as_str())))
+        .filter(|s| {
+            let name = s.name.to_lowercase();
+            only.is_empty() || only.iter().any(|o| name.contains(o.as_str()))
+        })
         .cloned()
         .collect();
     if seasons.is_empty() {

@@ -146,6 +146,29 @@ pub const PALETTE: [[u8; 3]; 7] = [
     [0, 0, 0],
 ];
 
+/// The colour of series `i` of `n` without a colour of its own: [`PALETTE`] when it
+/// has enough entries, else `n` hues evenly spaced around the colour wheel (HSV with
+/// saturation 0.85 and value 0.8; common practice for many categories, such as the
+/// months of a year, whose order is cyclic), so that no two series share a colour.
+pub fn auto_color(i: usize, n: usize) -> [u8; 3] {
+    if n <= PALETTE.len() {
+        return PALETTE[i % PALETTE.len()];
+    }
+    let h = 6.0 * (i % n) as f64 / n as f64;
+    let (s, v) = (0.85, 0.8);
+    let f = h - h.floor();
+    let (p, q, t) = (v * (1.0 - s), v * (1.0 - s * f), v * (1.0 - s * (1.0 - f)));
+    let (r, g, b) = match h.floor() as u32 {
+        0 => (v, t, p),
+        1 => (q, v, p),
+        2 => (p, v, t),
+        3 => (p, q, v),
+        4 => (t, p, v),
+        _ => (v, p, q),
+    };
+    [r, g, b].map(|x| (255.0 * x).round() as u8)
+}
+
 /// Fill of bands: a light blue-grey, drawn under the grid and the lines.
 const BAND_RGB: [u8; 3] = [205, 212, 228];
 
@@ -255,7 +278,14 @@ fn y_range(c: &LineChart, axis: Option<&YAxis>, side: Side) -> (f64, f64) {
         .flat_map(|s| s.points.iter().map(|p| p.1))
         .filter(|y| y.is_finite());
     let (lo, hi) = fold_extent(ys).unwrap_or((0.0, 1.0));
-    let pad = 0.05 * (hi - lo).max(1e-9);
+    // Flat data (a day of polar night's zero power) get a range of their own size, at
+    // least 1, rather than a sliver that labels every tick with the same number.
+    let flat = hi - lo <= 1e-9 * lo.abs().max(hi.abs()).max(1.0);
+    let pad = if flat {
+        (0.5 * lo.abs()).max(1.0)
+    } else {
+        0.05 * (hi - lo)
+    };
     let lo = if lo >= 0.0 { 0.0 } else { lo - pad };
     widen(lo, hi + pad)
 }
@@ -435,11 +465,22 @@ fn draw_lines<DB: DrawingBackend>(
     base: f64,
 ) -> Result<(), PlotError> {
     let width = (2.0 * base).round().max(1.0) as u32;
+    let n = c.series.len();
     for (i, s) in c.series.iter().enumerate() {
-        let color = rgb(s.color.unwrap_or(PALETTE[i % PALETTE.len()]));
+        let color = rgb(s.color.unwrap_or_else(|| auto_color(i, n)));
         let style = color.stroke_width(width);
         for (k, run) in runs(&s.points, map).into_iter().enumerate() {
-            let line = LineSeries::new(run, style);
+            // One element per segment, not one polyline: a wide polyline's mitred
+            // joins shoot far past the data where a noisy series turns sharply (spikes
+            // above the plot area, dips below zero), and separate segments have no joins.
+            let segments: Vec<PathElement<(f64, f64)>> = if run.len() == 1 {
+                vec![PathElement::new(vec![run[0], run[0]], style)]
+            } else {
+                run.windows(2)
+                    .map(|w| PathElement::new(vec![w[0], w[1]], style))
+                    .collect()
+            };
+            let line = segments;
             let drawn = match s.side {
                 Side::Left => chart.draw_series(line),
                 Side::Right => chart.draw_secondary_series(line),

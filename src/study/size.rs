@@ -130,7 +130,10 @@ pub fn size(
     };
     let base = study.mission(&[], &[]).map_err(SizeError::Case)?;
     let mission_value = match what {
-        What::Battery => base.battery.capacity_wh.unwrap_or(1000.0),
+        What::Battery => base
+            .battery
+            .rated_energy_wh()
+            .unwrap_or(crate::battery::params::DEFAULT_CAPACITY_WH),
         What::Panels => base.panels.panel.area_m2,
     };
     let planned: Result<Planned, PlanError> = study.plan(&base).map_err(SizeError::Case)?;

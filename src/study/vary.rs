@@ -282,6 +282,9 @@ pub fn set(doc: &mut toml::Table, key: &str, value: Value) -> Result<(), String>
     if key == PAYLOAD_DUTY_KEY {
         return set_payload_duty(doc, v);
     }
+    if key == CAPACITY_KEY {
+        resize_by_energy(doc)?;
+    }
     let segs: Vec<&str> = key.split('.').map(str::trim).collect();
     let mut table = doc;
     let mut i = 0;
@@ -352,6 +355,56 @@ pub fn set(doc: &mut toml::Table, key: &str, value: Value) -> Result<(), String>
         toml::Value::Float(v)
     };
     table.insert(last.to_string(), val);
+    Ok(())
+}
+
+/// The pack energy key, which a study varies however the file sizes the pack.
+pub const CAPACITY_KEY: &str = "battery.capacity_wh";
+
+/// Before [`CAPACITY_KEY`] is written: a pack the file sizes by cells (or leaves at the
+/// default) is re-sized by energy at its own nominal voltage
+/// ([`crate::battery::params::PackParams::rated_voltage_v`]: series cells × the
+/// chemistry's mean cell OCV, or the default voltage), so that the value written sets
+/// the pack's energy and the pack is not sized twice. A file that sizes the pack by
+/// energy is left as it is.
+fn resize_by_energy(doc: &mut toml::Table) -> Result<(), String> {
+    let battery = doc
+        .entry("battery")
+        .or_insert_with(|| toml::Value::Table(toml::Table::new()));
+    let toml::Value::Table(b) = battery else {
+        return Err("`battery` is not a table".to_string());
+    };
+    if b.contains_key("nominal_voltage_v") || b.contains_key("capacity_wh") {
+        // Sized by energy already (or in part: the mission's own check says so).
+        return Ok(());
+    }
+    let chemistry = match b.get("chemistry").and_then(toml::Value::as_str) {
+        None => crate::battery::chemistry::Chemistry::default(),
+        Some(c) => toml::Value::String(c.to_string())
+            .try_into()
+            .map_err(|_| format!("battery.chemistry = \"{c}\" is not a known chemistry"))?,
+    };
+    let series = match b.get("cells_series") {
+        None => None,
+        Some(v) => match v.as_integer() {
+            Some(n) if n >= 1 => u32::try_from(n).ok(),
+            _ => None,
+        }
+        .map(Some)
+        .ok_or("battery.cells_series must be a whole number of cells".to_string())?,
+    };
+    let params = crate::battery::params::PackParams {
+        chemistry,
+        cells_series: series,
+        ..Default::default()
+    };
+    let Some(volts) = params.rated_voltage_v() else {
+        return Err("the pack's nominal voltage is unknown".to_string());
+    };
+    for k in ["cells_series", "cells_parallel", "cell_capacity_ah"] {
+        b.remove(k);
+    }
+    b.insert("nominal_voltage_v".into(), toml::Value::Float(volts));
     Ok(())
 }
 
@@ -497,5 +550,40 @@ mod tests {
         )
         .unwrap();
         assert_eq!(doc["seasons"]["mode"].as_str(), Some("dates"));
+    }
+
+    /// A pack sized by cells, or not at all, is re-sized by energy at its own voltage
+    /// when a study sets its energy, so the mission reads one size (and that energy).
+    #[test]
+    fn capacity_on_a_pack_sized_by_cells_resizes_it_by_energy() {
+        use crate::battery::pack::Pack;
+        use crate::battery::params::PackParams;
+        let mut doc: toml::Table = toml::from_str(
+            "[battery]\nchemistry = \"nmc\"\ncells_series = 8\ncells_parallel = 6\ncell_capacity_ah = 3.0\n",
+        )
+        .unwrap();
+        set(&mut doc, CAPACITY_KEY, Value::Number(720.0)).unwrap();
+        let b = &doc["battery"];
+        assert!(b.get("cells_series").is_none() && b.get("cell_capacity_ah").is_none());
+        let p: PackParams = b.clone().try_into().unwrap();
+        let mean_cell = crate::battery::chemistry::Chemistry::Nmc
+            .preset()
+            .mean_ocv_v();
+        assert!((p.nominal_voltage_v.unwrap() - 8.0 * mean_cell).abs() < 1e-9);
+        let pack = Pack::new(&p).unwrap();
+        assert!((pack.stored_energy_wh(1.0) - 720.0).abs() < 1e-6);
+        assert!((pack.series_cells() - 8.0).abs() < 1e-9);
+        // No [battery] at all: the default voltage.
+        let mut doc = toml::Table::new();
+        set(&mut doc, CAPACITY_KEY, Value::Number(500.0)).unwrap();
+        assert_eq!(
+            doc["battery"]["nominal_voltage_v"].as_float(),
+            Some(crate::battery::params::DEFAULT_NOMINAL_VOLTAGE_V)
+        );
+        // Sized by energy: left alone but for the value.
+        let mut doc: toml::Table =
+            toml::from_str("[battery]\ncapacity_wh = 100.0\nnominal_voltage_v = 12.8\n").unwrap();
+        set(&mut doc, CAPACITY_KEY, Value::Number(250.0)).unwrap();
+        assert_eq!(doc["battery"]["nominal_voltage_v"].as_float(), Some(12.8));
     }
 }
