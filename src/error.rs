@@ -38,7 +38,7 @@ pub enum Error {
     #[error(transparent)]
     Sites(#[from] crate::plan::sites::SiteError),
     /// An input file could not be read.
-    #[error("{path}: reading failed: {source}. Fix: check the path")]
+    #[error("{path}: reading failed: {source}. Fix: {}", input_fix(.source))]
     Input {
         /// The file.
         path: PathBuf,
@@ -76,5 +76,16 @@ impl Error {
     /// Process exit code: 2 for bad input or unusable outputs.
     pub fn exit_code(&self) -> i32 {
         2
+    }
+}
+
+/// The fix for an input that could not be read, by the cause.
+fn input_fix(e: &std::io::Error) -> &'static str {
+    match e.kind() {
+        std::io::ErrorKind::InvalidData => {
+            "save the file as UTF-8 text (a text editor's \"save with encoding\")"
+        }
+        std::io::ErrorKind::PermissionDenied => "make the file readable for this user",
+        _ => "check the path",
     }
 }

@@ -687,3 +687,23 @@ fn mutated_mission_texts_never_panic_and_problems_point_inside_the_text() {
         }
     }
 }
+
+/// A mission file that is not UTF-8 text (here Latin-1) is named, with the fix that
+/// applies: its encoding, not its path.
+#[test]
+fn a_mission_file_in_another_encoding_is_named_with_the_fix() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("latin1.toml");
+    std::fs::write(&file, b"[site]\nname = \"caf\xe9\"\n").unwrap();
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(&file)
+        .assert()
+        .code(2);
+    let stderr = String::from_utf8(out.get_output().stderr.clone()).unwrap();
+    assert!(
+        stderr.contains(&file.display().to_string()) && stderr.contains("save the file as UTF-8"),
+        "{stderr}"
+    );
+}

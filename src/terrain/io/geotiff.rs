@@ -69,12 +69,15 @@ pub fn read_from<R: Read + Seek>(
             }
             other => other.to_string(),
         };
-        TerrainError::malformed(
-            path,
-            FORMAT,
-            detail,
-            "check that the file is complete and is a TIFF (gdalinfo shows it)",
-        )
+        // A well-formed file in an encoding the reader lacks needs re-encoding, not a
+        // new copy.
+        let fix = if matches!(e, tiff::TiffError::UnsupportedError(_)) {
+            "re-encode it as an uncompressed, LZW or Deflate GeoTIFF of one band (for \
+             example `gdal_translate -co COMPRESS=DEFLATE IN.tif OUT.tif`)"
+        } else {
+            "check that the file is complete and is a TIFF (gdalinfo shows it)"
+        };
+        TerrainError::malformed(path, FORMAT, detail, fix)
     };
     let mut limits = Limits::default();
     limits.decoding_buffer_size =

@@ -57,8 +57,9 @@ pub fn read_dem(path: &Path, opts: &ReadOptions) -> Result<Dem, TerrainError> {
             let scale = opts.png.ok_or_else(|| {
                 TerrainError::unsupported(
                     path,
-                    "PNG heightmap without cell size and vertical scale",
-                    "give --cell-m and --z-scale (and --z-offset if raw 0 is not 0 m)",
+                    "PNG heightmap without a cell size",
+                    "give --cell-m (in a mission file `cell_m` under [terrain]); and \
+                     --z-scale and --z-offset when a raw step is not 1 m or raw 0 is not 0 m",
                 )
             })?;
             png::read(path, &scale, opts.max_cells)?
