@@ -682,9 +682,19 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         &sites,
         scale,
     );
-    write_atomic(&out.join("route_map.png"), |wr| {
-        png::write_rgb8(wr, dem.width() * scale, dem.height() * scale, &px)
-    })?;
+    let other_names: Vec<&str> = others.iter().map(|o| o.0).collect();
+    let framed = sunward::report::map::route_map_png(
+        &px,
+        dem.width() * scale,
+        dem.height() * scale,
+        route,
+        &other_names,
+        dem.cell_size().dx_m,
+        scale,
+        &format!("{}: route coloured by step energy", m.site.name),
+    )
+    .map_err(|e| Error::Usage(format!("route map: {e}")))?;
+    write_atomic(&out.join("route_map.png"), |wr| wr.write_all(&framed))?;
     let grey_rgb: Vec<u8> = grey.iter().flat_map(|&g| [g, g, g]).collect();
     let mut relief = Vec::new();
     png::write_rgb8(&mut relief, dem.width(), dem.height(), &grey_rgb).map_err(|source| {

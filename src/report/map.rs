@@ -118,6 +118,135 @@ pub fn route_map_rgb(
     px
 }
 
+/// The map of [`route_map_rgb`] (`px`, `pw × ph` pixels) as PNG bytes, framed for a
+/// reader: `title` above it and a legend below it — the colour ramp labelled with the
+/// route's lowest and highest step energy in Wh, the start, goal and site markers, the
+/// other routes' colours with `others`' names, and a scale bar (`cell_m` metres per cell
+/// east to west, `scale` pixels per cell). The frame is at least 760 pixels wide (the map centred).
+#[allow(clippy::too_many_arguments)]
+pub fn route_map_png(
+    px: &[u8],
+    pw: usize,
+    ph: usize,
+    route: &Route,
+    others: &[&str],
+    cell_m: f64,
+    scale: usize,
+    title: &str,
+) -> Result<Vec<u8>, crate::report::plot::PlotError> {
+    use crate::report::plot::{draw_err, encode_png, register_fonts, FAMILY};
+    use plotters::prelude::*;
+    use plotters::style::FontStyle;
+    register_fonts()?;
+    let (head, foot) = (34usize, if others.is_empty() { 78 } else { 100 });
+    let w = pw.max(760);
+    let h = ph + head + foot;
+    let x0 = (w - pw) / 2;
+    let mut rgb = vec![255u8; w * h * 3];
+    for y in 0..ph {
+        let dst = ((head + y) * w + x0) * 3;
+        rgb[dst..dst + pw * 3].copy_from_slice(&px[y * pw * 3..(y + 1) * pw * 3]);
+    }
+    let wh = |j: f64| j / 3600.0;
+    let energies = route.profile.iter().map(|p| p.step_energy_j);
+    let lo = energies.clone().fold(f64::INFINITY, f64::min);
+    let hi = energies.fold(f64::NEG_INFINITY, f64::max);
+    {
+        let root = BitMapBackend::with_buffer(&mut rgb, (w as u32, h as u32)).into_drawing_area();
+        let text = |t: &str, at: (i32, i32), size: f64| {
+            root.draw(&Text::new(
+                t.to_string(),
+                at,
+                (FAMILY, size).into_font().color(&BLACK),
+            ))
+        };
+        root.draw(&Text::new(
+            title.to_string(),
+            (10, 8),
+            (FAMILY, 19.0, FontStyle::Bold).into_font().color(&BLACK),
+        ))
+        .map_err(draw_err)?;
+        let y = (head + ph + 12) as i32;
+        // The colour ramp.
+        let (bx, bw) = (10i32, 220i32);
+        for i in 0..bw {
+            let [r, g, b] = ramp(f64::from(i) / f64::from(bw - 1));
+            root.draw(&Rectangle::new(
+                [(bx + i, y), (bx + i + 1, y + 14)],
+                RGBColor(r, g, b).filled(),
+            ))
+            .map_err(draw_err)?;
+        }
+        text("route, by the energy of each grid step", (bx, y + 18), 13.0).map_err(draw_err)?;
+        if lo.is_finite() && hi.is_finite() {
+            text(&format!("{:.2} Wh", wh(lo)), (bx, y + 34), 13.0).map_err(draw_err)?;
+            text(&format!("{:.2} Wh", wh(hi)), (bx + bw - 62, y + 34), 13.0).map_err(draw_err)?;
+        }
+        // Markers.
+        let mut mx = bx + bw + 40;
+        for (fill, label) in [
+            (RGBColor(40, 200, 60), "start"),
+            (RGBColor(255, 255, 255), "goal"),
+            (RGBColor(250, 215, 40), "site or waypoint"),
+        ] {
+            // Squares on a black outline, as on the map.
+            root.draw(&Rectangle::new(
+                [(mx - 7, y), (mx + 7, y + 14)],
+                BLACK.filled(),
+            ))
+            .map_err(draw_err)?;
+            root.draw(&Rectangle::new(
+                [(mx - 5, y + 2), (mx + 5, y + 12)],
+                fill.filled(),
+            ))
+            .map_err(draw_err)?;
+            text(label, (mx + 12, y), 13.0).map_err(draw_err)?;
+            mx += 24 + 8 * label.len() as i32;
+        }
+        // The scale bar: a round length near a fifth of the map's width.
+        let cell_px = scale.max(1) as f64;
+        let map_m = pw as f64 / cell_px * cell_m;
+        if map_m.is_finite() && map_m > 0.0 {
+            let target = map_m / 5.0;
+            let step = 10f64.powf(target.log10().floor());
+            let len_m = [5.0, 2.0, 1.0]
+                .iter()
+                .map(|k| k * step)
+                .find(|&l| l <= target)
+                .unwrap_or(step);
+            let len_px = (len_m / cell_m * cell_px).round() as i32;
+            let sx = bx + bw + 40;
+            let sy = y + 32;
+            root.draw(&Rectangle::new(
+                [(sx, sy), (sx + len_px, sy + 5)],
+                BLACK.filled(),
+            ))
+            .map_err(draw_err)?;
+            let label = if len_m >= 1000.0 {
+                format!("{} km", len_m / 1000.0)
+            } else {
+                format!("{len_m} m")
+            };
+            text(&label, (sx + len_px + 8, sy - 5), 13.0).map_err(draw_err)?;
+        }
+        // The other routes.
+        let mut ox = bx;
+        for (i, name) in others.iter().enumerate() {
+            let ([r, g, b], _) = other_colour(i);
+            let oy = y + 62;
+            root.draw(&Rectangle::new(
+                [(ox, oy + 4), (ox + 24, oy + 9)],
+                RGBColor(r, g, b).filled(),
+            ))
+            .map_err(draw_err)?;
+            text(name, (ox + 30, oy), 13.0).map_err(draw_err)?;
+            ox += 50 + 8 * name.len() as i32;
+        }
+        root.present().map_err(draw_err)?;
+    }
+    encode_png(&rgb, w as u32, h as u32)
+}
+
 /// The map as SVG text (module doc). `relief_png` is the shaded relief, one pixel per
 /// cell (`width × height`); `scale` pixels per cell in the drawing; `others` are named
 /// routes drawn dashed over the route in [`OTHER_COLOURS`].
@@ -251,6 +380,52 @@ mod tests {
         assert!(svg.contains("map; dashed: winter (magenta)"), "{svg}");
         assert!(svg.contains("stroke=\"rgb(200,0,200)\""), "{svg}");
         assert!(svg.contains("stroke-dasharray"), "{svg}");
+    }
+
+    /// The framed PNG decodes at the frame's size, holds the map's pixels unchanged
+    /// below the title band, and has text (dark pixels) in the title band and legend.
+    #[test]
+    fn framed_map_png_has_title_map_and_legend() {
+        let (pw, ph) = (40usize, 30usize);
+        let px: Vec<u8> = (0..pw * ph * 3).map(|i| (i % 200) as u8 + 30).collect();
+        use crate::plan::route::route_along;
+        use crate::plan::{CellFlags, Connectivity, Objective, Planner, TiltLimits};
+        use crate::terrain::{GeoRef, Grid};
+        use crate::vehicle::{plan_model::RoverStepModel, Rover};
+        let dem = Grid::from_vec(pw, ph, vec![0.0; pw * ph], GeoRef::local(2.0));
+        let flags = CellFlags::from_dem(&dem);
+        let rover = Rover::default();
+        let model = RoverStepModel::new(&rover);
+        let p = Planner {
+            dem: &dem,
+            flags: &flags,
+            model: &model,
+            limits: TiltLimits::default(),
+            connectivity: Connectivity::Eight,
+            objective: Objective::ENERGY,
+        };
+        let route = route_along(&p, &(45..60).collect::<Vec<_>>(), 0);
+        let png = route_map_png(&px, pw, ph, &route, &["spring"], 2.0, 1, "Test ridge").unwrap();
+        let mut reader = ::png::Decoder::new(std::io::Cursor::new(png))
+            .read_info()
+            .unwrap();
+        let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+        let info = reader.next_frame(&mut buf).unwrap();
+        let (w, h) = (info.width as usize, info.height as usize);
+        assert_eq!((w, h), (760, ph + 34 + 100));
+        let x0 = (w - pw) / 2;
+        for y in 0..ph {
+            let at = ((34 + y) * w + x0) * 3;
+            assert_eq!(&buf[at..at + pw * 3], &px[y * pw * 3..(y + 1) * pw * 3]);
+        }
+        let dark = |rows: std::ops::Range<usize>| {
+            buf[rows.start * w * 3..rows.end * w * 3]
+                .chunks(3)
+                .filter(|p| p.iter().all(|&v| v < 80))
+                .count()
+        };
+        assert!(dark(0..34) > 50, "title text");
+        assert!(dark(34 + ph..h) > 200, "legend text and scale bar");
     }
 
     #[test]
