@@ -426,14 +426,79 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Res
             .map_err(draw_err)?;
     }
     draw_lines(&mut chart, c, map, base)?;
+    let (plot_w, plot_h) = chart.plotting_area().dim_in_pixel();
+    let corner = legend_corner(
+        c,
+        map,
+        (px0, px1),
+        [(yl0, yl1), (yr0, yr1)],
+        legend_box_px(c, base),
+        (f64::from(plot_w), f64::from(plot_h)),
+    );
     chart
         .configure_series_labels()
         .label_font(font(15.0))
         .background_style(WHITE.mix(0.88))
         .border_style(RGBColor(150, 150, 150))
-        .position(SeriesLabelPosition::UpperRight)
+        .position(corner)
         .draw()
         .map_err(draw_err)
+}
+
+/// The legend's size in pixels, estimated from its entries: one line of 15-pt text per
+/// series and per distinct band label, the widest label (DejaVu Sans averages about
+/// 0.55 em a character) beside a 20-pixel sample, with the box's margins.
+fn legend_box_px(c: &LineChart, base: f64) -> (f64, f64) {
+    let mut labels: Vec<&str> = c.series.iter().map(|s| s.name.as_str()).collect();
+    for b in &c.bands {
+        if let Some(l) = b.label.as_deref().filter(|l| !labels.contains(l)) {
+            labels.push(l);
+        }
+    }
+    let em = 15.0 * base;
+    let widest = labels.iter().map(|l| l.chars().count()).max().unwrap_or(0) as f64;
+    (
+        widest * 0.55 * em + 20.0 + 40.0,
+        labels.len() as f64 * (em + 4.0) + 30.0,
+    )
+}
+
+/// The corner of the plot area where the legend (`size` pixels, in a plot area of
+/// `area` pixels) covers the fewest data points, upper right when several tie (then
+/// upper left, lower right, lower left).
+fn legend_corner(
+    c: &LineChart,
+    map: XMap,
+    (px0, px1): (f64, f64),
+    y: [(f64, f64); 2],
+    size: (f64, f64),
+    area: (f64, f64),
+) -> SeriesLabelPosition {
+    let fw = ((size.0 + 10.0) / area.0.max(1.0)).min(1.0);
+    let fh = ((size.1 + 10.0) / area.1.max(1.0)).min(1.0);
+    let mut counts = [0usize; 4];
+    for s in &c.series {
+        let (y0, y1) = y[usize::from(s.side == Side::Right)];
+        for &(x, v) in &s.points {
+            let u = (map.to_plot(x) - px0) / (px1 - px0);
+            let w = (v - y0) / (y1 - y0);
+            if !(u.is_finite() && w.is_finite()) {
+                continue;
+            }
+            let (right, left) = (u >= 1.0 - fw, u <= fw);
+            let (top, bottom) = (w >= 1.0 - fh, w <= fh);
+            counts[0] += usize::from(top && right);
+            counts[1] += usize::from(top && left);
+            counts[2] += usize::from(bottom && right);
+            counts[3] += usize::from(bottom && left);
+        }
+    }
+    match (0..4).min_by_key(|&i| (counts[i], i)) {
+        Some(1) => SeriesLabelPosition::UpperLeft,
+        Some(2) => SeriesLabelPosition::LowerRight,
+        Some(3) => SeriesLabelPosition::LowerLeft,
+        _ => SeriesLabelPosition::UpperRight,
+    }
 }
 
 fn draw_bands<DB: DrawingBackend>(
@@ -494,4 +559,54 @@ fn draw_lines<DB: DrawingBackend>(
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn chart(points: Vec<(f64, f64)>) -> LineChart {
+        LineChart {
+            title: "t".into(),
+            x_label: "x".into(),
+            x_kind: XKind::Numeric,
+            y_left: YAxis {
+                label: "y".into(),
+                range: Some((0.0, 10.0)),
+            },
+            y_right: None,
+            series: vec![Series {
+                name: "a".into(),
+                points,
+                side: Side::Left,
+                color: None,
+            }],
+            bands: Vec::new(),
+            size_px: (800, 500),
+        }
+    }
+
+    /// The legend goes to the corner with the fewest points under it: upper right on
+    /// empty corners, elsewhere when the data fill the upper right.
+    #[test]
+    fn the_legend_avoids_the_data() {
+        let at = |pts: Vec<(f64, f64)>| {
+            let c = chart(pts);
+            legend_corner(
+                &c,
+                XMap::new(XKind::Numeric, 0.0),
+                (0.0, 10.0),
+                [(0.0, 10.0), (0.0, 1.0)],
+                (100.0, 60.0),
+                (800.0, 400.0),
+            )
+        };
+        let upper_right: Vec<(f64, f64)> = (0..50).map(|i| (9.0 + 0.02 * i as f64, 9.5)).collect();
+        let mut both_upper = upper_right.clone();
+        both_upper.extend((0..50).map(|i| (0.02 * i as f64, 9.5)));
+        let middle = vec![(5.0, 5.0)];
+        assert!(matches!(at(middle), SeriesLabelPosition::UpperRight));
+        assert!(matches!(at(upper_right), SeriesLabelPosition::UpperLeft));
+        assert!(matches!(at(both_upper), SeriesLabelPosition::LowerRight));
+    }
 }
