@@ -120,3 +120,27 @@ fn series_writes_header_and_rows_and_bad_input_exits_2() {
     assert_eq!(bad.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&bad.stderr).contains("latitude"));
 }
+
+/// Dates outside the SPA's years (−2000 to 6000, NREL/TP-560-34302 abstract) and a ΔT
+/// beyond ±8000 s are refused with the option named (exit 2); the ends are accepted.
+#[test]
+fn dates_and_delta_t_outside_the_spa_are_refused() {
+    let base = ["--lat", "45", "--lon", "0"];
+    let run = |extra: &[&str]| {
+        let args: Vec<&str> = base.iter().chain(extra).copied().collect();
+        sun(&args)
+    };
+    let late = run(&["--time", "6001-01-01T00:00:00Z"]);
+    assert_eq!(late.status.code(), Some(2));
+    let msg = String::from_utf8_lossy(&late.stderr);
+    assert!(msg.contains("--time") && msg.contains("6001"), "{msg}");
+    let series = run(&["--from", "1990-01-01", "--to", "7000-01-01", "-o", "x.csv"]);
+    assert_eq!(series.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&series.stderr).contains("--to"));
+    let dt = run(&["--time", "2027-01-01T00:00:00Z", "--delta-t-s", "1e9"]);
+    assert_eq!(dt.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&dt.stderr).contains("--delta-t-s"));
+    assert!(run(&["--time", "6000-06-01T12:00:00Z", "--json"])
+        .status
+        .success());
+}

@@ -159,8 +159,46 @@ fn rfc(t: DateTime<Utc>) -> String {
     t.to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
 }
 
+/// Years the SPA is valid for: −2000 to 6000 (Reda and Andreas, "Solar position
+/// algorithm for solar radiation applications", NREL/TP-560-34302, 2008, abstract).
+const SPA_YEARS: std::ops::RangeInclusive<i32> = -2000..=6000;
+
+/// ΔT the SPA accepts, seconds: ±8000 (the limits of the report's reference code, from
+/// memory; today's ΔT is about 69 s).
+const SPA_DELTA_T_S: f64 = 8000.0;
+
+/// Refuses dates and a ΔT the SPA is not valid for, naming the option.
+fn check_validity(a: &SunArgs) -> Result<(), Error> {
+    let years = [
+        ("--time", a.time.map(|t| t.with_timezone(&Utc).year())),
+        ("--date", a.date.map(|d| d.year())),
+        ("--from", a.from.map(|d| d.year())),
+        ("--to", a.to.map(|d| d.year())),
+    ];
+    for (flag, year) in years {
+        if let Some(y) = year.filter(|y| !SPA_YEARS.contains(y)) {
+            return Err(Error::Usage(format!(
+                "sun: {flag} is in the year {y}; the solar position algorithm is valid from \
+                 {} to {}. Fix: give a date in that range",
+                SPA_YEARS.start(),
+                SPA_YEARS.end()
+            )));
+        }
+    }
+    if let Some(dt) = a.delta_t_s {
+        if !(dt.abs() <= SPA_DELTA_T_S) {
+            return Err(Error::Usage(format!(
+                "sun: --delta-t-s {dt} is outside ±{SPA_DELTA_T_S} s. Fix: give TT − UT in \
+                 seconds (about 69 s in the 2020s), or leave it out for the built-in model"
+            )));
+        }
+    }
+    Ok(())
+}
+
 /// Runs `sunward sun`.
 pub fn run(a: SunArgs) -> Result<(), Error> {
+    check_validity(&a)?;
     if let Some(t) = a.time {
         return instant(&a, t.with_timezone(&Utc));
     }
