@@ -92,14 +92,38 @@ struct MonteCarlo {
 /// The daily laws of the mission's sky for `--monte-carlo` (refused unless the mission
 /// gives monthly clearness means and sds).
 fn daily_laws(path: &Path, m: &Mission) -> Result<DailyClearness, Error> {
-    let (Sky::Clearness { monthly, .. }, Some(sd)) = (&m.weather.sky, &m.weather.clearness_sd)
-    else {
-        return Err(Error::Usage(format!(
-            "{}: --monte-carlo samples the daily clear-sky index from the monthly statistics, \
-             which this mission does not give. Fix: set [weather] sky = \"clearness\" with \
-             the twelve monthly clearness means and clearness_sd (one number or twelve)",
+    let refuse = |what: &str, fix: &str| {
+        Error::Usage(format!(
+            "{}: --monte-carlo samples the daily clear-sky index from the monthly clearness \
+             means and their standard deviation; {what}. Fix: {fix}",
             path.display()
-        )));
+        ))
+    };
+    let sd_fix = "add [weather] clearness_sd (one number or twelve, one per month)";
+    let (monthly, sd) = match (&m.weather.sky, &m.weather.clearness_sd) {
+        (Sky::Clearness { monthly, .. }, Some(sd)) => (monthly, sd),
+        (Sky::Clearness { .. }, None) => {
+            return Err(refuse(
+                "this mission gives the monthly clearness means but no clearness_sd",
+                sd_fix,
+            ))
+        }
+        (Sky::Csv { .. }, _) => {
+            return Err(refuse(
+                "this mission uses a measured weather record (sky = \"csv\"), which is not \
+                 sampled",
+                "set [weather] sky = \"clearness\" with the twelve monthly clearness means \
+                 and clearness_sd, or run without --monte-carlo",
+            ))
+        }
+        (Sky::ClearSky(_), _) => {
+            return Err(refuse(
+                "this mission uses the clear sky (sky = \"clear_sky\"), which has no monthly \
+                 clearness",
+                "set [weather] sky = \"clearness\" with the twelve monthly clearness means \
+                 and clearness_sd (one number or twelve)",
+            ))
+        }
     };
     DailyClearness::new(monthly, sd).map_err(|e| {
         Error::Usage(format!(
@@ -508,6 +532,7 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
     let a = |w: &str, v: String, s: &str| (w.to_string(), v, s.to_string());
     PageContext {
         comparison: Vec::new(),
+        cautions: run_cautions(m),
         mission: m.site.name.clone(),
         route_line: format!(
             "Route: {:.0} m along the ground, {:.0} Wh of battery energy, {:.1} h of driving \
@@ -525,19 +550,25 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             match &m.weather.sky {
                 Sky::Csv { path } => a(
                     "irradiance",
-                    format!("measured, {}", path.display()),
+                    format!("measured weather, {}", path.display()),
                     "weather file; linear between records, beam closed on GHI",
                 ),
-                _ => a(
+                Sky::Clearness { .. } => a(
                     "irradiance",
-                    "clear sky, Ineichen-Perez".into(),
+                    "clear sky (Ineichen and Perez) scaled by the monthly clearness index".into(),
+                    "Ineichen and Perez, Solar Energy 73(3), 2002; monthly clearness from the \
+                     mission file ([weather] clearness)",
+                ),
+                Sky::ClearSky(_) => a(
+                    "irradiance",
+                    "clear sky (Ineichen and Perez) with monthly Linke turbidity".into(),
                     "Ineichen and Perez, Solar Energy 73(3), 2002",
                 ),
             },
             a(
-                "panel plane",
-                format!("{:?}", m.weather.sky_model),
-                "Hay and Davies 1980 / Perez et al. 1990",
+                "panel plane (sky diffuse)",
+                sky_model_words(m.weather.sky_model).into(),
+                "mission file ([weather] sky_model)",
             ),
             a(
                 "ground albedo",
@@ -578,12 +609,37 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             ),
             a(
                 "start of each season",
-                format!("{:05.2} h local time, full pack", m.start_local_h),
+                format!(
+                    "{} local time, full pack",
+                    sunward::units::clock_hhmm(m.start_local_h)
+                ),
                 "sunward convention",
             ),
             a("simulation step", format!("{} s", m.step_s), "mission file"),
         ],
     }
+}
+
+/// The sky-diffuse transposition model in plain words, with its publication.
+fn sky_model_words(model: sunward::sun::transposition::SkyModel) -> &'static str {
+    use sunward::sun::transposition::SkyModel;
+    match model {
+        SkyModel::Isotropic => "isotropic sky (Liu and Jordan 1963)",
+        SkyModel::HayDavies => "circumsolar and isotropic sky (Hay and Davies 1980)",
+        SkyModel::Perez => "circumsolar, horizon band and isotropic sky (Perez et al. 1990)",
+    }
+}
+
+/// The cautions of a run: the light caution names the mission's source of sunlight.
+fn run_cautions(m: &Mission) -> [&'static str; 4] {
+    use sunward::report::json::{
+        cautions_with_light, LIGHT_CLEARNESS, LIGHT_CLEAR_SKY, LIGHT_MEASURED,
+    };
+    cautions_with_light(match m.weather.sky {
+        Sky::ClearSky(_) => LIGHT_CLEAR_SKY,
+        Sky::Clearness { .. } => LIGHT_CLEARNESS,
+        Sky::Csv { .. } => LIGHT_MEASURED,
+    })
 }
 
 /// The terrain path as the mission file gives it (relative to the mission's folder), so
@@ -628,6 +684,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         inputs["weather_file"] = label.display().to_string().into();
     }
     let mut doc = summary(&m.site.name, results, inputs);
+    doc.cautions = run_cautions(m);
     doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
     doc.planner_comparison = cmp.map(|c| c.json.clone());
     let text = summary_json(&doc);

@@ -376,7 +376,7 @@ pub fn check_weather_span(m: &Mission, models: &Models, seasons: &[Season]) -> R
         }
         return Err(Error::Usage(format!(
             "{}: the weather record runs from {} to {} local time (UTC{}), but season \"{}\" \
-             ({}) runs from {} to {} (its start at {:.2} h plus the deadline of {} days). \
+             ({}) runs from {} to {} (its start at {} local time plus the deadline of {} days). \
              Fix: give weather records covering the season's run, move the season's date \
              into the record, or shorten [policy] deadline_days",
             path.display(),
@@ -387,7 +387,7 @@ pub fn check_weather_span(m: &Mission, models: &Models, seasons: &[Season]) -> R
             s.date,
             local(start),
             local(end),
-            m.start_local_h,
+            crate::units::clock_hhmm(m.start_local_h),
             m.policy.deadline_s / 86_400.0
         )));
     }

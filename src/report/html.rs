@@ -3,7 +3,6 @@
 //! their sources, and the cautions.
 
 use crate::mission::runner::SeasonResult;
-use crate::report::json::CAUTIONS;
 
 /// One picture for the page.
 #[derive(Debug, Clone)]
@@ -26,6 +25,8 @@ pub struct PageContext {
     /// With two planners: one row per season (season, fixed route's verdict, sun-aware
     /// plan's verdict), shown beside each other after the verdict. Empty: one planner.
     pub comparison: Vec<(String, String, String)>,
+    /// The cautions shown under the verdict (see [`crate::report::json::CAUTIONS`]).
+    pub cautions: [&'static str; 4],
 }
 
 const B64: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
@@ -179,7 +180,8 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         t.push_str("</table>");
         t
     };
-    let cautions: String = CAUTIONS
+    let cautions: String = ctx
+        .cautions
         .iter()
         .map(|c| format!("<li>{}</li>", escape(c)))
         .collect();
