@@ -142,6 +142,9 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         format!("<p class=bad>Infeasible: {}.</p>", bad.join(", "))
     };
     let mut figs = String::new();
+    if figures.is_empty() {
+        figs.push_str("<p>No charts: no season was simulated.</p>");
+    }
     for f in figures {
         figs.push_str(&format!(
             "<figure><img alt=\"{0}\" src=\"data:image/png;base64,{1}\"><figcaption>{0}</figcaption></figure>",
@@ -197,7 +200,11 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         m = escape(&ctx.mission),
         verdicts = verdict_table(results),
         route = escape(&ctx.route_line),
-        budgets = budget_table(results),
+        budgets = if results.iter().all(|r| r.days.is_empty()) {
+            "<p>No daily budgets: no season was simulated.</p>".to_string()
+        } else {
+            budget_table(results)
+        },
         v = env!("CARGO_PKG_VERSION"),
     )
 }
