@@ -62,6 +62,18 @@ pub fn wrap_azimuth_rad(az_rad: f64) -> f64 {
     }
 }
 
+/// Hours after local midnight as a clock time `HH:MM`, rounded to the minute
+/// (7.5 gives `07:30`). A value that is not finite is written as given.
+pub fn clock_hhmm(hours: f64) -> String {
+    if !hours.is_finite() {
+        return format!("{hours} h");
+    }
+    let minutes = (hours * 60.0).round() as i64;
+    let sign = if minutes < 0 { "-" } else { "" };
+    let m = minutes.abs();
+    format!("{sign}{:02}:{:02}", m / 60, m % 60)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -82,5 +94,14 @@ mod tests {
         assert!((wrap_azimuth_rad(-0.5) - (tau - 0.5)).abs() < 1e-12);
         assert!((wrap_azimuth_rad(tau + 0.25) - 0.25).abs() < 1e-12);
         assert_eq!(wrap_azimuth_rad(0.0), 0.0);
+    }
+
+    #[test]
+    fn clock_times_are_hours_and_minutes() {
+        assert_eq!(clock_hhmm(7.5), "07:30");
+        assert_eq!(clock_hhmm(8.0), "08:00");
+        assert_eq!(clock_hhmm(0.0), "00:00");
+        assert_eq!(clock_hhmm(13.999), "14:00");
+        assert_eq!(clock_hhmm(9.25), "09:15");
     }
 }

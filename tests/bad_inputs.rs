@@ -703,8 +703,9 @@ fn start_on_a_cliff_is_infeasible_for_tilt() {
     let detail = "no drivable route from the start to the goal: the way is closed by the \
                   downhill pitch limit (100 %), counting the steps out of the one cell the \
                   rover can reach (the start itself). The reachable cell nearest the goal \
-                  is (11.00, 49.00), 48.1 m from it. Fix: relax the limit named first (for \
-                  example --max-pitch-deg), allow 16-connected steps, or move the goal";
+                  is (11.00, 49.00), 48.1 m from it. Fix: relax the limit named first \
+                  ([route] max_descent_deg), allow 16-connected steps ([route] connectivity \
+                  = 16), or move the goal";
     for season in v["seasons"].as_array().unwrap() {
         assert_eq!(season["stranded"]["cause"], "tilt");
         assert_eq!(season["stranded"]["x"], 11.0);

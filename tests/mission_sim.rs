@@ -351,8 +351,9 @@ fn daily_budgets_add_up_and_summer_is_feasible() {
 }
 
 /// Polar night strands a rover that must stay awake: at 80° N on 21 December there is no
-/// light, the hotel load drains a small pack, and the cause is light. In −30 °C air the
-/// same rover's heater dominates and the cause is heat.
+/// light, the hotel load drains a small pack, and the cause is light, also in −30 °C air
+/// where the heater draws most of the energy. With some light (the equinox) the cold
+/// rover's heater is the cause: heat.
 #[test]
 fn polar_night_and_cold_strand_for_their_reasons() {
     use sunward::mission::verdict::summarize;
@@ -412,8 +413,24 @@ fn polar_night_and_cold_strand_for_their_reasons() {
     let cold = small(-30.0);
     let mut set = setup(&route, &rover, &cold, &panel, obs, 3.0, policy, 0.9);
     set.initial_box_temp_c = Some(6.0);
+    // In polar night nothing is generated, so the cause is the light even when the
+    // heater drew most of the energy; the heater's share is noted in the detail.
     let run = simulate(&set, midnight("2031-12-21")).unwrap();
-    assert_eq!(run.stranded.expect("stranded in the cold").cause, "heat");
+    assert_eq!(run.ledger.generated_wh, 0.0);
+    let st = run.stranded.expect("stranded in the polar night's cold");
+    assert_eq!(st.cause, "light", "{}", st.detail);
+    assert!(st.detail.contains("polar night"), "{}", st.detail);
+    assert!(st.detail.contains("the heater drew"), "{}", st.detail);
+    // With the sun up (the March equinox, from 09:00 UTC) a small panel generates
+    // something, and the heater's draw in −30 °C air is what strands the rover.
+    let tiny = ideal_panel(0.02);
+    let mut set = setup(&route, &rover, &cold, &tiny, obs, 3.0, policy, 0.9);
+    set.initial_box_temp_c = Some(6.0);
+    let morning = midnight("2031-03-21") + chrono::Duration::hours(9);
+    let run = simulate(&set, morning).unwrap();
+    assert!(run.ledger.generated_wh > 0.0);
+    let st = run.stranded.expect("stranded in the cold");
+    assert_eq!(st.cause, "heat", "{}", st.detail);
 }
 
 /// Four seasons at 70° N on the Vardholm plateau: the summer traverse arrives; in winter

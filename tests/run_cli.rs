@@ -395,3 +395,137 @@ fn sun_aware_planner_refuses_a_site_at_the_goal() {
     assert!(err.contains("another cell than the goal"), "{err}");
     assert!(err.contains("--planner fixed"), "{err}");
 }
+
+/// The bundled hillside mission (clearness sky, a 07:30 local start).
+fn hillside() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("missions/tallowby_rows.toml")
+}
+
+/// Every entry of a folder with its bytes (folders as `<folder>`), sorted by name.
+fn snapshot(dir: &std::path::Path) -> Vec<(String, Vec<u8>)> {
+    let mut v: Vec<(String, Vec<u8>)> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| {
+            let p = e.unwrap().path();
+            let bytes = if p.is_dir() {
+                b"<folder>".to_vec()
+            } else {
+                std::fs::read(&p).unwrap()
+            };
+            (p.file_name().unwrap().to_string_lossy().into_owned(), bytes)
+        })
+        .collect();
+    v.sort();
+    v
+}
+
+fn run_into(mission: &std::path::Path, out: &std::path::Path, args: &[&str]) -> (i32, String) {
+    let o = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("run")
+        .arg(mission)
+        .arg("--out")
+        .arg(out)
+        .arg("-q")
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        o.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
+}
+
+/// A run that fails after its outputs are made (here: a folder where one of them goes)
+/// leaves the previous run's whole output set byte-identical, and no staging folder.
+/// The report of the good run names the sky source and model in plain words and its
+/// start time as HH:MM.
+#[test]
+fn a_failing_run_leaves_the_previous_outputs_byte_identical() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let (code, err) = run_into(&hillside(), &out, &["--season", "June"]);
+    assert_eq!(code, 0, "{err}");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("07:30 local time, full pack"), "start time");
+    assert!(
+        html.contains("scaled by the monthly clearness index"),
+        "sky source"
+    );
+    assert!(html.contains("(Perez et al. 1990)"), "sky model");
+    assert!(!html.contains("Perez</td>") && !html.contains("HayDavies"));
+    assert!(
+        !html.contains("upper envelope"),
+        "clear-sky caution on a clearness run"
+    );
+    std::fs::remove_file(out.join("seasons.png")).unwrap();
+    std::fs::create_dir(out.join("seasons.png")).unwrap();
+    let before = snapshot(&out);
+    let (code, err) = run_into(&hillside(), &out, &["--season", "May"]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("seasons.png"), "{err}");
+    assert!(
+        snapshot(&out) == before,
+        "the failed run changed the previous outputs"
+    );
+}
+
+/// A route that cannot be planned after a good run: summary.json and report.html carry
+/// the infeasible verdict, the previous run's time series, plots and route are removed
+/// (they would not belong to it), a file of the user's stays, the rover is stranded at
+/// the start, and the fix names the mission file's key.
+#[test]
+fn an_unplannable_run_replaces_the_whole_previous_set() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let (code, err) = run_into(&hillside(), &out, &["--season", "June"]);
+    assert_eq!(code, 0, "{err}");
+    std::fs::write(out.join("notes.txt"), "mine").unwrap();
+    let terrain = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("terrains/tallowby_hillside.tif");
+    let text = std::fs::read_to_string(hillside())
+        .unwrap()
+        .replace(
+            "\"../terrains/tallowby_hillside.tif\"",
+            &format!("{:?}", terrain.display().to_string()),
+        )
+        .replace("max_climb_deg = 18.0", "max_climb_deg = 2.0");
+    let steep = dir.path().join("steep.toml");
+    std::fs::write(&steep, text).unwrap();
+    let (code, err) = run_into(&steep, &out, &["--season", "June"]);
+    assert_eq!(code, 0, "{err}");
+    let names: Vec<String> = snapshot(&out).into_iter().map(|f| f.0).collect();
+    assert_eq!(names, ["notes.txt", "report.html", "summary.json"]);
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let st = &v["seasons"][0]["stranded"];
+    assert_eq!(
+        (st["x"].as_f64(), st["y"].as_f64()),
+        (Some(20.0), Some(20.0))
+    );
+    assert_eq!(st["cause"], "tilt");
+    let detail = st["detail"].as_str().unwrap();
+    assert!(detail.contains("([route] max_climb_deg)"), "{detail}");
+    assert!(!detail.contains("--max-pitch-deg"), "{detail}");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("Infeasible: June."), "verdict");
+    assert!(html.contains("The route cannot be planned"), "route line");
+    assert!(html.contains("[route] max_climb_deg"), "reason");
+}
+
+/// `--monte-carlo` on a clearness mission without `clearness_sd` asks for that key only.
+#[test]
+fn monte_carlo_names_the_missing_clearness_sd() {
+    let dir = tempfile::tempdir().unwrap();
+    let (code, err) = run_into(
+        &hillside(),
+        dir.path(),
+        &["--season", "June", "--monte-carlo", "5"],
+    );
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("gives the monthly clearness means but no clearness_sd"),
+        "{err}"
+    );
+    assert!(err.contains("Fix: add [weather] clearness_sd"), "{err}");
+    assert!(!err.contains("set [weather] sky"), "{err}");
+}

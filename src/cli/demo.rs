@@ -12,13 +12,23 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
-use sunward::report::atomic::write_atomic;
-use sunward::terrain::io::geotiff;
-use sunward::terrain::{horizon, roughness, slope};
+use sunward::report::atomic::{write_atomic, Staging};
+use sunward::terrain::io::{geotiff, png};
+use sunward::terrain::{hillshade, horizon, roughness, slope};
 use sunward::Error;
 
 use super::progress::Bar;
-use super::terrain::{info_of, write_hillshade, write_tif};
+use super::terrain::info_of;
+
+/// The demo's own outputs beside the mission's.
+const DEMO_OUTPUTS: [&str; 6] = [
+    "info.json",
+    "slope.tif",
+    "roughness.tif",
+    "hillshade.png",
+    "horizon.tif",
+    "sky_view.tif",
+];
 
 /// The bundled demo terrain, compiled into the binary so the demo runs from anywhere.
 const DEMO_TERRAIN: &[u8] = include_bytes!("../../terrains/vardholm_plateau.tif");
@@ -35,12 +45,7 @@ pub struct DemoArgs {
 }
 
 pub fn run(a: DemoArgs) -> Result<(), Error> {
-    std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
-        path: a.out.clone(),
-        source,
-    })?;
-    let out = |name: &str| a.out.join(name);
-    super::check_output(&out("info.json"), &[])?;
+    super::run::prepare_out(&a.out, &[])?;
     let inputs = a.out.join("inputs");
     std::fs::create_dir_all(&inputs).map_err(|source| Error::Output {
         path: inputs.clone(),
@@ -57,30 +62,42 @@ pub fn run(a: DemoArgs) -> Result<(), Error> {
     write_atomic(&inputs.join("vardholm_plateau.tif"), |w| {
         w.write_all(DEMO_TERRAIN)
     })?;
-    super::run::run_mission(&mission_path, &a.out, &[], false)?;
+    // The mission's outputs and the terrain maps are one set: staged, then moved into
+    // place together (see `Staging`).
+    let mut staged = Staging::new(&a.out)?;
+    let done = super::run::run_mission(&mission_path, &mut staged, &[], false)?;
     let dem = geotiff::read_from(Cursor::new(DEMO_TERRAIN), Path::new(DEMO_NAME), u64::MAX)?;
     eprintln!("demo terrain: {DEMO_NAME} (Vardholm plateau, synthetic)");
     let info = info_of(Path::new(DEMO_NAME), &dem);
     let json = serde_json::to_string_pretty(&info).expect("plain data serialises");
-    write_atomic(&out("info.json"), |w| w.write_all(json.as_bytes()))?;
+    staged.write("info.json", |w| w.write_all(json.as_bytes()))?;
     let slope_deg: Vec<f32> = slope::slope_map(&dem)
         .data()
         .iter()
         .map(|v| v.to_degrees())
         .collect();
-    write_tif(&out("slope.tif"), &dem, &[&slope_deg])?;
-    write_tif(
-        &out("roughness.tif"),
-        &dem,
-        &[roughness::roughness_map(&dem).data()],
-    )?;
-    write_hillshade(&out("hillshade.png"), &dem, 315.0, 45.0)?;
+    let (w, h) = (dem.width(), dem.height());
+    let mut tif = |name: &str, bands: &[&[f32]]| {
+        staged.write(name, |out| geotiff::write(out, &dem.georef, w, h, bands))
+    };
+    tif("slope.tif", &[&slope_deg])?;
+    tif("roughness.tif", &[roughness::roughness_map(&dem).data()])?;
     let map = horizon::horizon_map(&dem, horizon::DEFAULT_SECTORS, &Bar::new())?;
     let bands: Vec<Vec<f32>> = (0..map.sectors()).map(|k| map.sector_degrees(k)).collect();
     let refs: Vec<&[f32]> = bands.iter().map(|b| b.as_slice()).collect();
-    write_tif(&out("horizon.tif"), &dem, &refs)?;
+    tif("horizon.tif", &refs)?;
     let svf = horizon::sky_view_map(&dem, &map);
-    write_tif(&out("sky_view.tif"), &dem, &[svf.data()])?;
+    tif("sky_view.tif", &[svf.data()])?;
+    let shade = hillshade::to_grey(&hillshade::hillshade(
+        &dem,
+        315f64.to_radians(),
+        45f64.to_radians(),
+    ));
+    staged.write("hillshade.png", |out| png::write_gray8(out, w, h, &shade))?;
+    done.commit(staged, |n| {
+        super::run::is_run_output(n) || DEMO_OUTPUTS.contains(&n)
+    })?;
+    done.print();
     let (_, _, svf_mean) = svf.stats().unwrap_or((0.0, 0.0, 1.0));
     crate::say!("Vardholm plateau demo terrain");
     crate::say!(

@@ -66,16 +66,14 @@ pub struct DemOptions {
     /// PNG heightmaps only: raw sample value that marks no-data.
     #[arg(long, value_name = "RAW")]
     pub png_nodata: Option<u16>,
-    /// Refuse rasters with more cells than this (checked before reading the data);
-    /// 1 to 2^34, as `max_cells` in a mission file.
+    /// Refuse rasters with more cells than this (checked before reading the data); at
+    /// least 1.
     #[arg(long, value_name = "CELLS", default_value_t = DEFAULT_MAX_CELLS,
-          value_parser = clap::value_parser!(u64).range(1..=1u64 << 34))]
+          value_parser = clap::value_parser!(u64).range(1..))]
     pub max_cells: u64,
     /// Memory budget in MiB for the route planner's and the horizon maps' per-cell
-    /// arrays, checked before they are allocated; 1 to 2^30, as `max_memory_mb` in a
-    /// mission file.
-    #[arg(long, value_name = "MIB", default_value_t = sunward::limits::DEFAULT_MAX_MEMORY_MB,
-          value_parser = clap::value_parser!(u64).range(1..=1u64 << 30))]
+    /// arrays, checked before they are allocated.
+    #[arg(long, value_name = "MIB", default_value_t = sunward::limits::DEFAULT_MAX_MEMORY_MB)]
     pub max_memory_mb: u64,
 }
 

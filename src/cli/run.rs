@@ -11,7 +11,7 @@ use sunward::mission::runner::{run_seasons_with, SeasonResult};
 use sunward::mission::{check, Problem};
 use sunward::plan::route::locate;
 use sunward::plan::{Planner, Route};
-use sunward::report::atomic::write_atomic;
+use sunward::report::atomic::Staging;
 use sunward::report::csv::{daily_rows, timeseries_csv, DAILY_HEADER};
 use sunward::report::html::{report_html, Figure, PageContext};
 use sunward::report::json::{monte_carlo_json, summary, summary_json};
@@ -92,14 +92,38 @@ struct MonteCarlo {
 /// The daily laws of the mission's sky for `--monte-carlo` (refused unless the mission
 /// gives monthly clearness means and sds).
 fn daily_laws(path: &Path, m: &Mission) -> Result<DailyClearness, Error> {
-    let (Sky::Clearness { monthly, .. }, Some(sd)) = (&m.weather.sky, &m.weather.clearness_sd)
-    else {
-        return Err(Error::Usage(format!(
-            "{}: --monte-carlo samples the daily clear-sky index from the monthly statistics, \
-             which this mission does not give. Fix: set [weather] sky = \"clearness\" with \
-             the twelve monthly clearness means and clearness_sd (one number or twelve)",
+    let refuse = |what: &str, fix: &str| {
+        Error::Usage(format!(
+            "{}: --monte-carlo samples the daily clear-sky index from the monthly clearness \
+             means and their standard deviation; {what}. Fix: {fix}",
             path.display()
-        )));
+        ))
+    };
+    let sd_fix = "add [weather] clearness_sd (one number or twelve, one per month)";
+    let (monthly, sd) = match (&m.weather.sky, &m.weather.clearness_sd) {
+        (Sky::Clearness { monthly, .. }, Some(sd)) => (monthly, sd),
+        (Sky::Clearness { .. }, None) => {
+            return Err(refuse(
+                "this mission gives the monthly clearness means but no clearness_sd",
+                sd_fix,
+            ))
+        }
+        (Sky::Csv { .. }, _) => {
+            return Err(refuse(
+                "this mission uses a measured weather record (sky = \"csv\"), which is not \
+                 sampled",
+                "set [weather] sky = \"clearness\" with the twelve monthly clearness means \
+                 and clearness_sd, or run without --monte-carlo",
+            ))
+        }
+        (Sky::ClearSky(_), _) => {
+            return Err(refuse(
+                "this mission uses the clear sky (sky = \"clear_sky\"), which has no monthly \
+                 clearness",
+                "set [weather] sky = \"clearness\" with the twelve monthly clearness means \
+                 and clearness_sd (one number or twelve)",
+            ))
+        }
     };
     DailyClearness::new(monthly, sd).map_err(|e| {
         Error::Usage(format!(
@@ -151,16 +175,97 @@ pub fn run(a: RunArgs) -> Result<(), Error> {
     Ok(())
 }
 
-/// Runs a mission file into `out`; returns whether every season was feasible.
+/// A mission run whose outputs are staged: what it prints once they are in place.
+pub struct Finished {
+    /// Every season feasible.
+    pub feasible: bool,
+    /// The mission's input files (never replaced or removed by the outputs).
+    pub inputs: Vec<PathBuf>,
+    /// The lines for standard output.
+    lines: Vec<String>,
+}
+
+impl Finished {
+    /// Prints the verdicts (call after the outputs are committed).
+    pub fn print(&self) {
+        for l in &self.lines {
+            crate::say!("{l}");
+        }
+    }
+
+    /// Moves a run's staged outputs into place: summary.json last, and the previous
+    /// run's outputs that this run did not write removed.
+    pub fn commit(&self, staged: Staging, is_own: impl Fn(&str) -> bool) -> Result<(), Error> {
+        let inputs: Vec<&Path> = self.inputs.iter().map(|p| p.as_path()).collect();
+        staged.commit("summary.json", is_own, &inputs)
+    }
+}
+
+/// The fixed names of `run`'s outputs.
+const RUN_OUTPUTS: [&str; 11] = [
+    "summary.json",
+    "report.html",
+    "daily-budget.csv",
+    "route.geojson",
+    "profile.csv",
+    "route_map.png",
+    "route_map.svg",
+    "seasons.png",
+    "seasons.svg",
+    "montecarlo.png",
+    "montecarlo.svg",
+];
+
+/// Whether `name` is one of `run`'s outputs (a fixed name, or a per-season name with a
+/// season slug): a previous run's file of such a name that this run does not write is
+/// removed with the new set.
+pub fn is_run_output(name: &str) -> bool {
+    let slugged = |prefix: &str, suffix: &str| {
+        name.strip_prefix(prefix)
+            .and_then(|r| r.strip_suffix(suffix))
+            .is_some_and(|s| {
+                !s.is_empty()
+                    && s.bytes()
+                        .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-')
+            })
+    };
+    RUN_OUTPUTS.contains(&name)
+        || slugged("timeseries-", ".csv")
+        || slugged("season-", ".png")
+        || slugged("season-", ".svg")
+        || slugged("route-sun-aware-", ".geojson")
+}
+
+/// The files a mission reads.
+fn mission_inputs(path: &Path, m: &Mission) -> Vec<PathBuf> {
+    let mut v = vec![path.to_path_buf(), m.terrain.dem_path.clone()];
+    v.extend(m.terrain.keep_out_path.clone());
+    if let Sky::Csv { path } = &m.weather.sky {
+        v.push(path.clone());
+    }
+    v
+}
+
+/// Creates `out` and checks it can take the outputs, before any long work.
+pub fn prepare_out(out: &Path, inputs: &[&Path]) -> Result<(), Error> {
+    std::fs::create_dir_all(out).map_err(|source| Error::Output {
+        path: out.to_path_buf(),
+        source,
+    })?;
+    super::check_output(&out.join("summary.json"), inputs)
+}
+
+/// Runs a mission file into the staged set `staged` (for `sunward demo`, which adds its
+/// own files before the commit).
 pub fn run_mission(
     mission: &Path,
-    out: &Path,
+    staged: &mut Staging,
     only: &[String],
     quiet: bool,
-) -> Result<bool, Error> {
-    run_with(&RunArgs {
+) -> Result<Finished, Error> {
+    let a = RunArgs {
         mission: mission.to_path_buf(),
-        out: out.to_path_buf(),
+        out: staged.out().to_path_buf(),
         season: only.to_vec(),
         fail_on_infeasible: false,
         quiet,
@@ -168,23 +273,34 @@ pub fn run_mission(
         sun_aware_objective: SunAwareGoal::Arrival,
         monte_carlo: None,
         seed: DEFAULT_SEED,
-    })
+    };
+    let m = load_mission(&a.mission)?;
+    run_staged(&a, &m, staged)
 }
 
 fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let m = load_mission(&a.mission)?;
+    if a.monte_carlo.is_some() {
+        daily_laws(&a.mission, &m)?;
+    }
+    prepare_out(&a.out, &[&a.mission])?;
+    let mut staged = Staging::new(&a.out)?;
+    let done = run_staged(a, &m, &mut staged)?;
+    done.commit(staged, is_run_output)?;
+    done.print();
+    Ok(done.feasible)
+}
+
+/// Plans, simulates and stages every output of the run (nothing in `a.out` changes).
+fn run_staged(a: &RunArgs, m: &Mission, staged: &mut Staging) -> Result<Finished, Error> {
     let laws = match a.monte_carlo {
-        Some(_) => Some(daily_laws(&a.mission, &m)?),
+        Some(_) => Some(daily_laws(&a.mission, m)?),
         None => None,
     };
-    std::fs::create_dir_all(&a.out).map_err(|source| Error::Output {
-        path: a.out.clone(),
-        source,
-    })?;
-    super::check_output(&a.out.join("summary.json"), &[&a.mission])?;
-    super::check_series_memory(&a.mission, &m)?;
-    let models = load_models(&m)?;
-    let ground = Ground::load(&m)?;
+    let inputs = mission_inputs(&a.mission, m);
+    super::check_series_memory(&a.mission, m)?;
+    let models = load_models(m)?;
+    let ground = Ground::load(m)?;
     let cells = ground.dem.len() as u64;
     let need = sunward::limits::planner_bytes(cells)
         + sunward::limits::horizon_bytes(cells, horizon::DEFAULT_SECTORS as u64);
@@ -196,17 +312,17 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         what,
         need,
     )?;
-    let seasons = select_seasons(&m, &a.season)?;
-    prepare::check_weather_span(&m, &models, &seasons)?;
-    let planned = match prepare::plan(&m, &ground)? {
+    let seasons = select_seasons(m, &a.season)?;
+    prepare::check_weather_span(m, &models, &seasons)?;
+    let planned = match prepare::plan(m, &ground)? {
         Ok(p) => p,
-        Err(e) => return unplannable(a, &m, &seasons, &e),
+        Err(e) => return unplannable(m, &seasons, &e, staged, inputs),
     };
     let model = RoverStepModel::new(&m.rover);
-    let planner = ground.planner(&m, &model);
-    let visits = sun_aware_visits(&m, &planned.order);
+    let planner = ground.planner(m, &model);
+    let visits = sun_aware_visits(m, &planned.order);
     if a.planner == PlannerKind::SunAware {
-        check_sun_aware(&m, &planner, &visits)?;
+        check_sun_aware(m, &planner, &visits)?;
         // The label searches of the seasons that run at once, on top of the planner's
         // arrays and the horizon maps.
         let at_once = rayon::current_num_threads().min(seasons.len()).max(1) as u64;
@@ -238,7 +354,7 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let bar = Bar::new();
     let progress: &dyn sunward::progress::Progress = if a.quiet { &silent } else { &bar };
     let horizons = horizon::horizon_map(&ground.dem, horizon::DEFAULT_SECTORS, progress)?;
-    let setup = sim_setup(&m, &models, &planned, Some(&horizons));
+    let setup = sim_setup(m, &models, &planned, Some(&horizons));
     let results = run_seasons_with(&setup, &seasons, progress)
         .map_err(|e| Error::Usage(format!("{}: {e}", m.site.name)))?;
     let mc = match (a.monte_carlo, &laws) {
@@ -261,15 +377,15 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         PlannerKind::Fixed => (results, None),
         PlannerKind::SunAware => {
             let (r, c) = sun_aware(
-                a, &m, &planner, &setup, &seasons, &visits, results, progress,
+                a, m, &planner, &setup, &seasons, &visits, results, progress, staged,
             )?;
             (r, Some(c))
         }
     };
     write_outputs(
         mission_dir,
-        &a.out,
-        &m,
+        staged,
+        m,
         &ground.dem,
         route,
         &planner,
@@ -277,11 +393,15 @@ fn run_with(a: &RunArgs) -> Result<bool, Error> {
         mc.as_ref(),
         cmp.as_ref(),
     )?;
-    print_verdicts(&m, &results, &a.out);
+    let mut lines = verdict_lines(m, &results, &a.out);
     if let Some(mc) = &mc {
-        print_monte_carlo(mc, m.battery.reserve_soc);
+        lines.extend(monte_carlo_lines(mc, m.battery.reserve_soc));
     }
-    Ok(results.iter().all(|r| r.summary.feasible))
+    Ok(Finished {
+        feasible: results.iter().all(|r| r.summary.feasible),
+        inputs,
+        lines,
+    })
 }
 
 /// The points the sun-aware plan visits between start and goal: the waypoints in their
@@ -352,8 +472,8 @@ fn sun_aware(
     visits: &[sunward::mission::sunaware::Visit],
     fixed: Vec<SeasonResult>,
     progress: &dyn sunward::progress::Progress,
+    staged: &mut Staging,
 ) -> Result<(Vec<SeasonResult>, Comparison), Error> {
-    let out = a.out.as_path();
     use sunward::mission::sunaware::run_seasons_sun_aware_with;
     let (start, goal) = (&m.route.start.point, &m.route.goal.point);
     let settings = sun_aware_settings(a);
@@ -398,7 +518,7 @@ fn sun_aware(
                 let gj = serde_json::to_string(&route_geojson(&p.route, &rs))
                     .expect("JSON values serialise");
                 let name = format!("route-sun-aware-{}.geojson", slug(&f.season.name));
-                write_atomic(&out.join(&name), |w| w.write_all(gj.as_bytes()))?;
+                staged.write(&name, |w| w.write_all(gj.as_bytes()))?;
                 cmp.routes.push((f.season.name.clone(), p.route.clone()));
                 let t0 = sunward::mission::runner::season_start(
                     f.season.date,
@@ -479,36 +599,48 @@ fn slug(name: &str) -> String {
 }
 
 /// The route cannot be planned: every season is infeasible, stranded at its start by
-/// the limit that closes the way (see `sunward::mission::prepare::unplannable`). Writes
-/// summary.json only.
+/// the limit that closes the way (see `sunward::mission::prepare::unplannable`). Stages
+/// summary.json and report.html, both with that verdict; the commit removes the previous
+/// run's other outputs (time series, plots, route), which would not belong to it.
 fn unplannable(
-    a: &RunArgs,
     m: &Mission,
     seasons: &[Season],
     e: &sunward::plan::PlanError,
-) -> Result<bool, Error> {
+    staged: &mut Staging,
+    inputs: Vec<PathBuf>,
+) -> Result<Finished, Error> {
     let results = prepare::unplannable(m, seasons, e);
-    let inputs = serde_json::json!({"route": "not plannable", "reason": e.to_string()});
-    let doc = summary(&m.site.name, &results, inputs);
+    let inputs_json = serde_json::json!({"route": "not plannable", "reason": e.to_string()});
+    let mut doc = summary(&m.site.name, &results, inputs_json);
+    doc.cautions = run_cautions(m);
     let text = summary_json(&doc);
-    write_atomic(&a.out.join("summary.json"), |w| {
-        w.write_all(text.as_bytes())
-    })?;
-    crate::say!(
-        "{}: the route cannot be planned, so no season is feasible.",
-        m.site.name
-    );
-    crate::say!("  {e}");
-    crate::say!("summary.json written to {}", a.out.display());
-    Ok(false)
+    staged.write("summary.json", |w| w.write_all(text.as_bytes()))?;
+    let mut ctx = page_context_without_route(m);
+    ctx.route_line = "Route: none. The route cannot be planned (the reason is in the \
+                      verdict table), so the rover stays at the start and no season is \
+                      simulated."
+        .to_string();
+    let html = report_html(&ctx, &results, &[]);
+    staged.write("report.html", |w| w.write_all(html.as_bytes()))?;
+    let out = staged.out().display().to_string();
+    let lines = vec![
+        format!(
+            "{}: the route cannot be planned, so no season is feasible.",
+            m.site.name
+        ),
+        format!("  {e}"),
+        format!("summary.json and report.html written to {out}"),
+    ];
+    Ok(Finished {
+        feasible: false,
+        inputs,
+        lines,
+    })
 }
 
 /// The page's fixed text: the route and the assumptions with their sources.
 fn page_context(m: &Mission, route: &Route) -> PageContext {
-    let a = |w: &str, v: String, s: &str| (w.to_string(), v, s.to_string());
     PageContext {
-        comparison: Vec::new(),
-        mission: m.site.name.clone(),
         route_line: format!(
             "Route: {:.0} m along the ground, {:.0} Wh of battery energy, {:.1} h of driving \
              (planned by exact A* on the terrain grid).",
@@ -516,6 +648,18 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             sunward::units::j_to_wh(route.summary.energy_j),
             route.summary.duration_s / 3600.0
         ),
+        ..page_context_without_route(m)
+    }
+}
+
+/// The page's fixed text without a route line: the assumptions with their sources.
+fn page_context_without_route(m: &Mission) -> PageContext {
+    let a = |w: &str, v: String, s: &str| (w.to_string(), v, s.to_string());
+    PageContext {
+        comparison: Vec::new(),
+        cautions: run_cautions(m),
+        mission: m.site.name.clone(),
+        route_line: String::new(),
         assumptions: vec![
             a(
                 "sun position",
@@ -525,19 +669,25 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             match &m.weather.sky {
                 Sky::Csv { path } => a(
                     "irradiance",
-                    format!("measured, {}", path.display()),
+                    format!("measured weather, {}", path.display()),
                     "weather file; linear between records, beam closed on GHI",
                 ),
-                _ => a(
+                Sky::Clearness { .. } => a(
                     "irradiance",
-                    "clear sky, Ineichen-Perez".into(),
+                    "clear sky (Ineichen and Perez) scaled by the monthly clearness index".into(),
+                    "Ineichen and Perez, Solar Energy 73(3), 2002; monthly clearness from the \
+                     mission file ([weather] clearness)",
+                ),
+                Sky::ClearSky(_) => a(
+                    "irradiance",
+                    "clear sky (Ineichen and Perez) with monthly Linke turbidity".into(),
                     "Ineichen and Perez, Solar Energy 73(3), 2002",
                 ),
             },
             a(
-                "panel plane",
-                format!("{:?}", m.weather.sky_model),
-                "Hay and Davies 1980 / Perez et al. 1990",
+                "panel plane (sky diffuse)",
+                sky_model_words(m.weather.sky_model).into(),
+                "mission file ([weather] sky_model)",
             ),
             a(
                 "ground albedo",
@@ -585,12 +735,37 @@ fn page_context(m: &Mission, route: &Route) -> PageContext {
             ),
             a(
                 "start of each season",
-                format!("{:05.2} h local time, full pack", m.start_local_h),
+                format!(
+                    "{} local time, full pack",
+                    sunward::units::clock_hhmm(m.start_local_h)
+                ),
                 "sunward convention",
             ),
             a("simulation step", format!("{} s", m.step_s), "mission file"),
         ],
     }
+}
+
+/// The sky-diffuse transposition model in plain words, with its publication.
+fn sky_model_words(model: sunward::sun::transposition::SkyModel) -> &'static str {
+    use sunward::sun::transposition::SkyModel;
+    match model {
+        SkyModel::Isotropic => "isotropic sky (Liu and Jordan 1963)",
+        SkyModel::HayDavies => "circumsolar and isotropic sky (Hay and Davies 1980)",
+        SkyModel::Perez => "circumsolar, horizon band and isotropic sky (Perez et al. 1990)",
+    }
+}
+
+/// The cautions of a run: the light caution names the mission's source of sunlight.
+fn run_cautions(m: &Mission) -> [&'static str; 4] {
+    use sunward::report::json::{
+        cautions_with_light, LIGHT_CLEARNESS, LIGHT_CLEAR_SKY, LIGHT_MEASURED,
+    };
+    cautions_with_light(match m.weather.sky {
+        Sky::ClearSky(_) => LIGHT_CLEAR_SKY,
+        Sky::Clearness { .. } => LIGHT_CLEARNESS,
+        Sky::Csv { .. } => LIGHT_MEASURED,
+    })
 }
 
 /// The terrain path as the mission file gives it (relative to the mission's folder), so
@@ -606,7 +781,7 @@ fn terrain_label(m: &Mission, mission_dir: &Path) -> String {
 #[allow(clippy::too_many_arguments)] // one call site; each argument is a distinct input
 fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     mission_dir: &Path,
-    out: &Path,
+    st: &mut Staging,
     m: &Mission,
     dem: &Dem,
     route: &Route,
@@ -635,25 +810,25 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         inputs["weather_file"] = label.display().to_string().into();
     }
     let mut doc = summary(&m.site.name, results, inputs);
+    doc.cautions = run_cautions(m);
     doc.monte_carlo = mc.map(|mc| monte_carlo_json(&mc.results, mc.runs, mc.seed));
     doc.planner_comparison = cmp.map(|c| c.json.clone());
+    let out = st.out().to_path_buf();
     let text = summary_json(&doc);
-    write_atomic(&out.join("summary.json"), |w| w.write_all(text.as_bytes()))?;
+    st.write("summary.json", |w| w.write_all(text.as_bytes()))?;
     let mut daily = format!("{DAILY_HEADER}\n");
     for r in results {
         let text = timeseries_csv(&r.run.samples);
         let name = format!("timeseries-{}.csv", slug(&r.season.name));
-        write_atomic(&out.join(name), |w| w.write_all(text.as_bytes()))?;
+        st.write(&name, |w| w.write_all(text.as_bytes()))?;
         daily.push_str(&daily_rows(&r.season.name, &r.days));
     }
-    write_atomic(&out.join("daily-budget.csv"), |w| {
-        w.write_all(daily.as_bytes())
-    })?;
+    st.write("daily-budget.csv", |w| w.write_all(daily.as_bytes()))?;
     let rs = route_summary_json(route, planner.objective, &m.rover, &planner.limits);
     let gj = serde_json::to_string(&route_geojson(route, &rs)).expect("JSON values serialise");
-    write_atomic(&out.join("route.geojson"), |w| w.write_all(gj.as_bytes()))?;
+    st.write("route.geojson", |w| w.write_all(gj.as_bytes()))?;
     let prof = profile_csv(route);
-    write_atomic(&out.join("profile.csv"), |w| w.write_all(prof.as_bytes()))?;
+    st.write("profile.csv", |w| w.write_all(prof.as_bytes()))?;
     let grey = hillshade::to_grey(&hillshade::hillshade(
         dem,
         315f64.to_radians(),
@@ -694,7 +869,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         &format!("{}: route coloured by step energy", m.site.name),
     )
     .map_err(|e| Error::Usage(format!("route map: {e}")))?;
-    write_atomic(&out.join("route_map.png"), |wr| wr.write_all(&framed))?;
+    st.write("route_map.png", |wr| wr.write_all(&framed))?;
     let grey_rgb: Vec<u8> = grey.iter().flat_map(|&g| [g, g, g]).collect();
     let mut relief = Vec::new();
     png::write_rgb8(&mut relief, dem.width(), dem.height(), &grey_rgb).map_err(|source| {
@@ -713,7 +888,7 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         scale,
         &format!("{}: route coloured by step energy", m.site.name),
     );
-    write_atomic(&out.join("route_map.svg"), |w| w.write_all(svg.as_bytes()))?;
+    st.write("route_map.svg", |w| w.write_all(svg.as_bytes()))?;
     let offset = m.site.utc_offset.local_minus_utc();
     let plot_err = |e: sunward::report::plot::PlotError| Error::Usage(format!("plot: {e}"));
     let mut charts: Vec<(String, sunward::report::plot::LineChart)> = results
@@ -736,11 +911,9 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
     let mut figures = Vec::new();
     for (name, chart) in &charts {
         let png = render_png(chart).map_err(plot_err)?;
-        write_atomic(&out.join(format!("{name}.png")), |w| w.write_all(&png))?;
+        st.write(&format!("{name}.png"), |w| w.write_all(&png))?;
         let svg = render_svg(chart).map_err(plot_err)?;
-        write_atomic(&out.join(format!("{name}.svg")), |w| {
-            w.write_all(svg.as_bytes())
-        })?;
+        st.write(&format!("{name}.svg"), |w| w.write_all(svg.as_bytes()))?;
         figures.push(Figure {
             caption: chart.title.clone(),
             png,
@@ -774,19 +947,20 @@ fn write_outputs<M: sunward::plan::StepModel + ?Sized>(
         ctx.comparison = c.rows.clone();
     }
     let html = report_html(&ctx, results, &figures);
-    write_atomic(&out.join("report.html"), |w| w.write_all(html.as_bytes()))?;
+    st.write("report.html", |w| w.write_all(html.as_bytes()))?;
     Ok(())
 }
 
-fn print_monte_carlo(mc: &MonteCarlo, reserve_soc: f64) {
-    crate::say!(
+/// The Monte Carlo's lines for standard output.
+fn monte_carlo_lines(mc: &MonteCarlo, reserve_soc: f64) -> Vec<String> {
+    let mut lines = Vec::new();
+    lines.push(format!(
         "weather Monte Carlo: {} runs per season, seed {} (days drawn independently: dark \
          spells are under-sampled, so these probabilities are optimistic)",
-        mc.runs,
-        mc.seed
-    );
+        mc.runs, mc.seed
+    ));
     for r in &mc.results {
-        crate::say!(
+        lines.push(format!(
             "  {:<18} complete in {:>5.1} % of runs  min SOC mean {:>5.1} %  5/50/95 %: {:.1} / {:.1} / {:.1} %  (reserve {:.0} %)",
             r.season.name,
             100.0 * r.probability_complete(),
@@ -795,16 +969,19 @@ fn print_monte_carlo(mc: &MonteCarlo, reserve_soc: f64) {
             100.0 * r.min_soc_quantile(0.5),
             100.0 * r.min_soc_quantile(0.95),
             100.0 * reserve_soc
-        );
+        ));
     }
-    crate::say!("  (summary.json: monte_carlo; montecarlo.png/svg)");
+    lines.push("  (summary.json: monte_carlo; montecarlo.png/svg)".to_string());
+    lines
 }
 
-fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
-    crate::say!("{}: {} season(s)", m.site.name, results.len());
+/// The seasons' verdicts, lines for standard output.
+fn verdict_lines(m: &Mission, results: &[SeasonResult], out: &Path) -> Vec<String> {
+    let mut lines = Vec::new();
+    lines.push(format!("{}: {} season(s)", m.site.name, results.len()));
     for r in results {
         let s = &r.summary;
-        crate::say!(
+        lines.push(format!(
             "  {:<18} {}  {:<10} min SOC {:>5.1} %  margin {:+.2}  generated {:>7.0} Wh  used {:>7.0} Wh  {}",
             s.name,
             s.date,
@@ -814,8 +991,12 @@ fn print_verdicts(m: &Mission, results: &[SeasonResult], out: &Path) {
             s.energy_generated_wh,
             s.energy_consumed_wh.drive + s.energy_consumed_wh.hotel + s.energy_consumed_wh.payload + s.energy_consumed_wh.heater,
             s.reason
-        );
+        ));
     }
-    crate::say!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png/svg, season-*.png/svg, seasons.png/svg, report.html", out.display());
-    crate::say!("(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)");
+    lines.push(format!("outputs in {}: summary.json, timeseries-*.csv, daily-budget.csv, route.geojson, profile.csv, route_map.png/svg, season-*.png/svg, seasons.png/svg, report.html", out.display()));
+    lines.push(
+        "(a planning aid: confirm by field tests and keep margins; see README, Model limits and cautions)"
+            .to_string(),
+    );
+    lines
 }

@@ -186,7 +186,7 @@ fn check_validity(a: &SunArgs) -> Result<(), Error> {
         }
     }
     if let Some(dt) = a.delta_t_s {
-        if !(dt.abs() <= SPA_DELTA_T_S) {
+        if dt.is_nan() || dt.abs() > SPA_DELTA_T_S {
             return Err(Error::Usage(format!(
                 "sun: --delta-t-s {dt} is outside ±{SPA_DELTA_T_S} s. Fix: give TT − UT in \
                  seconds (about 69 s in the 2020s), or leave it out for the built-in model"

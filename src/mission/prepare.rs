@@ -123,7 +123,9 @@ pub fn plan(m: &Mission, ground: &Ground) -> Result<Result<Planned, PlanError>, 
                 stops,
             }))
         }
-        Err(e @ PlanError::Unreachable { .. }) => Ok(Err(e)),
+        Err(e @ PlanError::Unreachable { .. }) => Ok(Err(
+            e.with_limit_names(crate::plan::error::LimitNames::MissionKeys)
+        )),
         Err(e) => Err(e.into()),
     }
 }
@@ -376,7 +378,7 @@ pub fn check_weather_span(m: &Mission, models: &Models, seasons: &[Season]) -> R
         }
         return Err(Error::Usage(format!(
             "{}: the weather record runs from {} to {} local time (UTC{}), but season \"{}\" \
-             ({}) runs from {} to {} (its start at {:.2} h plus the deadline of {} days). \
+             ({}) runs from {} to {} (its start at {} local time plus the deadline of {} days). \
              Fix: give weather records covering the season's run, move the season's date \
              into the record, or shorten [policy] deadline_days",
             path.display(),
@@ -387,7 +389,7 @@ pub fn check_weather_span(m: &Mission, models: &Models, seasons: &[Season]) -> R
             s.date,
             local(start),
             local(end),
-            m.start_local_h,
+            crate::units::clock_hhmm(m.start_local_h),
             m.policy.deadline_s / 86_400.0
         )));
     }
@@ -488,12 +490,11 @@ pub fn unplannable_cause(e: &PlanError) -> &'static str {
     }
 }
 
-/// Every season infeasible, stranded at the start by the limit that closes the way.
+/// Every season infeasible, stranded at the start (its place and the season's first
+/// instant: without a route the rover never leaves) by the limit that closes the way;
+/// the detail names the reachable cell nearest the leg's end.
 pub fn unplannable(m: &Mission, seasons: &[Season], e: &PlanError) -> Vec<SeasonResult> {
-    let (x, y) = match e {
-        PlanError::Unreachable { nearest_xy, .. } => *nearest_xy,
-        _ => (f64::NAN, f64::NAN),
-    };
+    let (x, y) = (m.route.start.point.x, m.route.start.point.y);
     let offset = i64::from(m.site.utc_offset.local_minus_utc());
     seasons
         .iter()

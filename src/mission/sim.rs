@@ -30,9 +30,11 @@
 //!    the node's temperature; unaccepted solar is curtailed; a shortfall strands the rover.
 //!
 //! A run ends at arrival (or, with [`EndCondition::Deadline`], at the deadline), at the
-//! deadline, or when the rover is stranded. Stranding causes: `heat` when the pack is too
-//! cold to discharge or the heater took a quarter or more of the energy used in the last
-//! 24 h, otherwise `light`.
+//! deadline, or when the rover is stranded. Stranding causes, in this order: `heat` when
+//! the pack is too cold to discharge; `light` when the panels generated nothing since the
+//! start (polar night, or no usable light; the heater's share is then only noted in the
+//! detail); `heat` when the heater took a quarter or more of the energy used in the last
+//! 24 h; otherwise `light`.
 //!
 //! Payload stops: on reaching a site the rover parks for its payload run (loads
 //! scheduled `at_site` run, the site clock counts even outside the driving hours), then
@@ -486,6 +488,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
     // The next stop to make, and the seconds already spent at the current one.
     let (mut next_stop, mut at_site_s): (usize, Option<f64>) = (0, None);
     let mut day_window: std::collections::VecDeque<(f64, f64)> = Default::default();
+    // Whether the sun has stood above the horizon at any step so far.
+    let mut sun_was_up = false;
     // The next scheduled hold still to finish.
     let mut next_hold = 0;
     // The cell the rover was last in, and its shade.
@@ -676,6 +680,7 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             stored_delta_wh: ps.stored_delta_wh,
         };
         run.ledger.add(&step_ledger);
+        sun_was_up |= sun.apparent_elevation_rad() > 0.0;
         day_window.push_back((step_ledger.heater_wh, step_ledger.consumed_wh()));
         if day_window.len() as f64 * dt > 86_400.0 {
             day_window.pop_front();
@@ -715,33 +720,85 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             let (heater, used) = day_window
                 .iter()
                 .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
-            run.stranded = Some(stranding(t, here, &ps, box_state.temp_c, heater, used));
+            let light = Light {
+                generated_wh: run.ledger.generated_wh,
+                sun_was_up,
+            };
+            run.stranded = Some(stranding(
+                t,
+                here,
+                &ps,
+                box_state.temp_c,
+                (heater, used),
+                light,
+            ));
             break;
         }
     }
     Ok(run)
 }
 
-/// Why the rover ran out (module doc: `heat` or `light`).
+/// The light a run has had up to the moment it strands.
+#[derive(Debug, Clone, Copy)]
+struct Light {
+    /// Energy generated since the run's start, Wh.
+    generated_wh: f64,
+    /// Whether the sun stood above the horizon at any step.
+    sun_was_up: bool,
+}
+
+/// The heater's share of the last 24 h's energy use from which a stranding (with some
+/// light in the run) is blamed on the cold.
+const HEATER_SHARE_HEAT: f64 = 0.25;
+
+/// Below this much energy generated over the whole run, Wh, the run had no usable light.
+const NO_LIGHT_WH: f64 = 1e-6;
+
+/// Why the rover ran out (module doc: `heat` or `light`). `window` is the heater's
+/// energy and the energy used over the last 24 h, Wh.
 fn stranding(
     t: DateTime<Utc>,
     here: &crate::plan::ProfileRow,
     ps: &crate::battery::pack::PackStep,
     box_c: f64,
-    heater_wh: f64,
-    used_wh: f64,
+    window: (f64, f64),
+    light: Light,
 ) -> Stranded {
+    let (heater_wh, used_wh) = window;
     let heater_share = if used_wh > 0.0 {
         heater_wh / used_wh
     } else {
         0.0
+    };
+    let heater_note = if heater_share >= HEATER_SHARE_HEAT {
+        format!(
+            "; the heater drew {:.0} % of the energy used in the last 24 h",
+            100.0 * heater_share
+        )
+    } else {
+        String::new()
     };
     let (cause, detail) = if ps.flags.discharge_blocked_temp {
         (
             "heat",
             format!("the pack at {box_c:.1} °C is outside its discharge temperature range"),
         )
-    } else if heater_share >= 0.25 {
+    } else if light.generated_wh < NO_LIGHT_WH {
+        // No light at all: whatever drew the energy, nothing could have replaced it.
+        let why = if light.sun_was_up {
+            "the panels generated nothing since the start (the sun was up but gave no usable light)"
+        } else {
+            "the sun stayed below the horizon the whole run (polar night), so the panels \
+             generated nothing"
+        };
+        (
+            "light",
+            format!(
+                "{why}; the pack reached its floor at {:.0} % state of charge{heater_note}",
+                100.0 * ps.state.soc
+            ),
+        )
+    } else if heater_share >= HEATER_SHARE_HEAT {
         (
             "heat",
             format!(

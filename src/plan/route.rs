@@ -169,6 +169,7 @@ pub fn plan_route<M: StepModel + ?Sized>(
                     to: points[i + 1].label.clone(),
                     nearest_xy: planner.dem.georef.cell_centre(n % w, n / w),
                     detail,
+                    names: crate::plan::error::LimitNames::default(),
                 }
             })?;
         expanded += leg.expanded;

@@ -3,7 +3,6 @@
 //! their sources, and the cautions.
 
 use crate::mission::runner::SeasonResult;
-use crate::report::json::CAUTIONS;
 
 /// One picture for the page.
 #[derive(Debug, Clone)]
@@ -26,6 +25,8 @@ pub struct PageContext {
     /// With two planners: one row per season (season, fixed route's verdict, sun-aware
     /// plan's verdict), shown beside each other after the verdict. Empty: one planner.
     pub comparison: Vec<(String, String, String)>,
+    /// The cautions shown under the verdict (see [`crate::report::json::CAUTIONS`]).
+    pub cautions: [&'static str; 4],
 }
 
 const B64: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
@@ -141,6 +142,9 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         format!("<p class=bad>Infeasible: {}.</p>", bad.join(", "))
     };
     let mut figs = String::new();
+    if figures.is_empty() {
+        figs.push_str("<p>No charts: no season was simulated.</p>");
+    }
     for f in figures {
         figs.push_str(&format!(
             "<figure><img alt=\"{0}\" src=\"data:image/png;base64,{1}\"><figcaption>{0}</figcaption></figure>",
@@ -179,7 +183,8 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         t.push_str("</table>");
         t
     };
-    let cautions: String = CAUTIONS
+    let cautions: String = ctx
+        .cautions
         .iter()
         .map(|c| format!("<li>{}</li>", escape(c)))
         .collect();
@@ -195,7 +200,11 @@ pub fn report_html(ctx: &PageContext, results: &[SeasonResult], figures: &[Figur
         m = escape(&ctx.mission),
         verdicts = verdict_table(results),
         route = escape(&ctx.route_line),
-        budgets = budget_table(results),
+        budgets = if results.iter().all(|r| r.days.is_empty()) {
+            "<p>No daily budgets: no season was simulated.</p>".to_string()
+        } else {
+            budget_table(results)
+        },
         v = env!("CARGO_PKG_VERSION"),
     )
 }

@@ -42,12 +42,33 @@ use crate::sun::clearness_mc::DISTRIBUTION;
 /// The schema version written into every summary.json.
 pub const SCHEMA_VERSION: u32 = 1;
 
-/// The cautions every report carries.
+/// The light caution of a run under the clear sky.
+pub const LIGHT_CLEAR_SKY: &str = "Clear-sky irradiance is an upper envelope of real skies; \
+     cloud, dust, snow on panels and shading the terrain model misses all reduce the energy.";
+
+/// The light caution of a run under the clear sky scaled by monthly clearness.
+pub const LIGHT_CLEARNESS: &str = "The monthly clearness scales every day of a month alike; \
+     real days scatter around the mean (run --monte-carlo with clearness_sd to see the \
+     spread), and dust, snow on panels and shading the terrain model misses all reduce the \
+     energy.";
+
+/// The light caution of a run on a measured weather record.
+pub const LIGHT_MEASURED: &str = "Measured weather is one record of the past; other years \
+     differ, and dust, snow on panels and shading the terrain model misses all reduce the \
+     energy.";
+
+/// The cautions every report carries, with `light` (one of the `LIGHT_*` texts) second.
+pub fn cautions_with_light(light: &'static str) -> [&'static str; 4] {
+    let mut c = CAUTIONS;
+    c[1] = light;
+    c
+}
+
+/// The cautions every report carries (the light caution of the clear sky).
 pub const CAUTIONS: [&str; 4] = [
     "sunward is a planning aid with stated model limits (README: Model limits and cautions); \
      confirm every plan by field tests and keep margins.",
-    "Clear-sky irradiance is an upper envelope of real skies; cloud, dust, snow on panels and \
-     shading the terrain model misses all reduce the energy.",
+    LIGHT_CLEAR_SKY,
     "Battery limits, above all the charge temperature limit, come from the cell maker's data \
      sheet, not from sunward's defaults.",
     "Local regulations and the operator's own safety practice govern every deployment.",
