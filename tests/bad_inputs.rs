@@ -598,8 +598,30 @@ fn mission_files_with_wrong_types_and_impossible_values_are_refused() {
         (
             "[rover]",
             "[rover]\nmax_speed_m_s = nan",
-            "m.toml:10:17: rover.max_speed_m_s: got NaN, expected a number in (0, 20]. Fix: \
-             set `max_speed_m_s` inside (0, 20], or leave it out for the documented default",
+            "m.toml:10:17: rover.max_speed_m_s: got NaN, expected a finite number in (0, \
+             20]. Fix: set `max_speed_m_s` inside (0, 20], or leave it out for the documented \
+             default",
+        ),
+        // Keys whose bounds the sun or battery stage checks: a value that is not finite is
+        // refused here with the documented range, never the limits of an f64.
+        (
+            "[panels]",
+            "[panels]\narea_m2 = nan",
+            "m.toml:11:11: panels.area_m2: got NaN, expected a finite number in [0, 1000]. \
+             Fix: set `area_m2` inside [0, 1000], or leave it out for the documented default",
+        ),
+        (
+            "[weather]",
+            "[weather]\nair_temp_peak_h = inf",
+            "m.toml:13:19: weather.air_temp_peak_h: got inf, expected a finite number in [0, \
+             24]. Fix: set `air_temp_peak_h` inside [0, 24], or leave it out for the \
+             documented default",
+        ),
+        (
+            "[1.0, 2.0, 5.0,",
+            "[1.0, 2.0, -inf,",
+            "m.toml:13:19: weather.air_temp_mean_c: value -inf (at index 2) is not a finite \
+             number in [-90, 60]. Fix: keep every value of `air_temp_mean_c` inside [-90, 60]",
         ),
     ];
     for (from, to, want) in cases {
