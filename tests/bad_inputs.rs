@@ -964,3 +964,54 @@ fn fuzz_found_ascii_grid_that_is_not_text() {
          raster with the wrong extension",
     );
 }
+
+// ---------------------------------------------------------------------------------------
+// Flags
+
+/// `sun --tilt-deg 200` once named the tilt in radians (3.49...) under a degree name, and
+/// a panel azimuth up to ±1000 radians passed. Both are checked and named in degrees.
+#[test]
+fn panel_plane_flags_are_checked_and_named_in_degrees() {
+    let s = Scratch::new();
+    let at = [
+        "sun",
+        "--lat",
+        "45",
+        "--lon",
+        "0",
+        "--time",
+        "2027-06-21T12:00:00Z",
+    ];
+    let with = |tilt: &str, az: &str| {
+        let mut args = at.to_vec();
+        args.extend(["--tilt-deg", tilt, "--panel-azimuth-deg", az]);
+        args.into_iter().map(String::from).collect::<Vec<_>>()
+    };
+    let refused = [
+        (
+            with("200", "0"),
+            "tilt_deg = 200: expected degrees from 0 (flat) to 180 (facing down). Fix: give \
+             the panel tilt from horizontal in degrees (--tilt-deg)",
+        ),
+        (
+            with("30", "1000"),
+            "panel_azimuth_deg = 1000: expected degrees clockwise from north, -360 to 360. \
+             Fix: give the azimuth the panel faces (--panel-azimuth-deg), e.g. 180 for south",
+        ),
+        (
+            with("30", "-360.5"),
+            "panel_azimuth_deg = -360.5: expected degrees clockwise from north, -360 to 360. \
+             Fix: give the azimuth the panel faces (--panel-azimuth-deg), e.g. 180 for south",
+        ),
+    ];
+    for (args, want) in refused {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        check_refused(&s, &args, want);
+    }
+    for (tilt, az) in [("180", "-360"), ("0", "360"), ("90", "-90")] {
+        let args = with(tilt, az);
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let (code, err) = s.run(&args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+    }
+}
