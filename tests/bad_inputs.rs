@@ -1015,3 +1015,63 @@ fn panel_plane_flags_are_checked_and_named_in_degrees() {
         assert_eq!(code, 0, "{args:?}: {err}");
     }
 }
+
+/// `size --json` on a mission no size can save (polar night, daylight-only driving) once
+/// printed the plain-text sentence to stdout. It prints the documented object, with
+/// `value` null and the reason, and exits 1.
+#[test]
+fn size_json_when_no_size_passes_is_still_json() {
+    let s = Scratch::new();
+    mission(&s, "m.toml", "lat_deg = 45.0", "lat_deg = 80.0");
+    let text = std::fs::read_to_string(s.path("m.toml")).unwrap().replace(
+        "[battery]",
+        "[battery]\ncapacity_wh = 1000.0\nnominal_voltage_v = 25.6",
+    );
+    s.write(
+        "m.toml",
+        text + "[seasons]\nmode = \"dates\"\ndates = [\"2027-12-21\"]\n",
+    );
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .current_dir(s.dir.path())
+        .args(["size", "m.toml", "--what", "battery", "--json", "-q"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let v: Value = serde_json::from_slice(&out.stdout).expect("stdout is JSON");
+    let mut keys: Vec<&str> = v.as_object().unwrap().keys().map(|k| k.as_str()).collect();
+    keys.sort();
+    assert_eq!(
+        keys,
+        [
+            "binding_season",
+            "binding_time",
+            "cautions",
+            "error",
+            "failing_below",
+            "failing_reason",
+            "failing_season",
+            "key",
+            "margin",
+            "min_soc",
+            "mission_value",
+            "simulations",
+            "tolerance",
+            "unit",
+            "value"
+        ]
+    );
+    assert_eq!(v["key"], "battery.capacity_wh");
+    assert_eq!(v["value"], Value::Null);
+    assert_eq!(v["failing_below"], 1e7);
+    assert_eq!(
+        v["failing_reason"],
+        "did not arrive: no driving hours in the whole run (under a daylight-only policy \
+         this is polar night), 0 of 40 m driven"
+    );
+    let error = v["error"].as_str().unwrap();
+    assert!(
+        error.starts_with("no battery.capacity_wh up to 10000000 Wh makes every season"),
+        "{error}"
+    );
+}
