@@ -1075,3 +1075,57 @@ fn size_json_when_no_size_passes_is_still_json() {
         "{error}"
     );
 }
+
+// ---------------------------------------------------------------------------------------
+// Points on the terrain's edge
+
+/// A point exactly on the east or south edge of the terrain was refused as lying outside
+/// an extent the message quoted as including it. The extent is closed: [`terrain`]'s
+/// corners (0 or 60 in x and y) are accepted by `route` and by `check`; a point beyond
+/// the edge is still refused.
+#[test]
+fn points_on_the_terrains_outer_edge_are_inside() {
+    let s = Scratch::new();
+    terrain(&s);
+    for from in ["60,0", "0,0", "60,60", "0,60", "60,30", "30,0"] {
+        let (code, err) = s.run(&[
+            "route",
+            "--terrain",
+            "dem.asc",
+            "--from",
+            from,
+            "--to",
+            "31,49",
+        ]);
+        assert_eq!(code, 0, "--from {from}: {err}");
+    }
+    check_refused(
+        &s,
+        &[
+            "route",
+            "--terrain",
+            "dem.asc",
+            "--from",
+            "60.5,0",
+            "--to",
+            "31,49",
+        ],
+        "the start (60.5, 0) lies outside the terrain, which covers x 0 .. 60 and y 0 .. 60 \
+         (in the DEM's CRS units). Fix: give a point inside the terrain",
+    );
+    for start in ["[60.0, 0.0]", "[0.0, 0.0]", "[60.0, 60.0]"] {
+        let s = Scratch::new();
+        mission(&s, "m.toml", "[31.0, 49.0]", start);
+        let (code, err) = s.run(&["check", "m.toml"]);
+        assert_eq!(code, 0, "start_m = {start}: {err}");
+    }
+    let s = Scratch::new();
+    mission(&s, "m.toml", "[31.0, 49.0]", "[60.0, -0.5]");
+    check_refused(
+        &s,
+        &["check", "m.toml"],
+        "m.toml: the mission file has 1 problem(s):\nm.toml:7:11: route.start_m: start (60, \
+         -0.5) lies outside the terrain, which spans x 0 to 60 and y 0 to 60. Fix: give map \
+         coordinates inside the terrain (see `sunward terrain info`)",
+    );
+}
