@@ -623,6 +623,28 @@ fn mission_files_with_wrong_types_and_impossible_values_are_refused() {
             "m.toml:13:19: weather.air_temp_mean_c: value -inf (at index 2) is not a finite \
              number in [-90, 60]. Fix: keep every value of `air_temp_mean_c` inside [-90, 60]",
         ),
+        // A point takes exactly two numbers: a third one used to pass unread.
+        (
+            "[31.0, 49.0]",
+            "[31.0, 49.0, 3.0]",
+            "m.toml:7:11: route.start_m: expected a point [x, y] of two numbers, got an array \
+             of 3 values. Fix: write it as a point [x, y] of two numbers, e.g. `start_m = \
+             [100.0, 250.0]`",
+        ),
+        (
+            "[31.0, 49.0]",
+            "[31.0]",
+            "m.toml:7:11: route.start_m: expected a point [x, y] of two numbers, got an array \
+             of 1 value. Fix: write it as a point [x, y] of two numbers, e.g. `start_m = \
+             [100.0, 250.0]`",
+        ),
+        (
+            "goal_m = [45.0, 15.0]",
+            "goal_m = [45.0, 15.0]\nwaypoints_m = [[40.0, 30.0], [1.0, 2.0, 3.0]]",
+            "m.toml:9:15: route.waypoints_m: expected an array of points [[x, y], ...], got an \
+             array of 2 values. Fix: write it as an array of points [[x, y], ...], e.g. \
+             `waypoints_m = [[100.0, 250.0], [400.0, 300.0]]`",
+        ),
     ];
     for (from, to, want) in cases {
         let s = Scratch::new();

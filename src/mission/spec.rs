@@ -496,15 +496,16 @@ pub struct Reader<'a, 'i> {
 }
 
 /// The TOML type a value should have, for messages.
-fn type_name(v: &DeValue<'_>) -> &'static str {
+fn type_name(v: &DeValue<'_>) -> std::borrow::Cow<'static, str> {
     match v {
-        DeValue::String(_) => "text",
-        DeValue::Integer(_) => "an integer",
-        DeValue::Float(_) => "a number",
-        DeValue::Boolean(_) => "true/false",
-        DeValue::Datetime(_) => "a date",
-        DeValue::Array(_) => "an array",
-        DeValue::Table(_) => "a table",
+        DeValue::String(_) => "text".into(),
+        DeValue::Integer(_) => "an integer".into(),
+        DeValue::Float(_) => "a number".into(),
+        DeValue::Boolean(_) => "true/false".into(),
+        DeValue::Datetime(_) => "a date".into(),
+        DeValue::Array(a) if a.len() == 1 => "an array of 1 value".into(),
+        DeValue::Array(a) => format!("an array of {} values", a.len()).into(),
+        DeValue::Table(_) => "a table".into(),
     }
 }
 
@@ -663,9 +664,8 @@ impl<'a, 'i> Reader<'a, 'i> {
 
     /// A map point `[x, y]` in metres.
     pub fn point(&mut self, key: &'static str, out: &mut Problems<'_>) -> Option<Val<[f64; 2]>> {
-        let v =
-            self.typed::<[f64; 2]>(key, "a point [x, y] of two numbers", "[100.0, 250.0]", out)?;
-        self.finite_point(key, v, out)
+        let v = self.typed::<XY>(key, "a point [x, y] of two numbers", "[100.0, 250.0]", out)?;
+        self.finite_point(key, Spanned::new(v.span(), v.into_inner().0), out)
     }
 
     fn finite_point(
@@ -854,7 +854,7 @@ fn read_connectivity(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Option<V
 }
 
 fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f64; 2]>> {
-    let v = t.typed::<Vec<Spanned<[f64; 2]>>>(
+    let v = t.typed::<Vec<Spanned<XY>>>(
         "waypoints_m",
         "an array of points [[x, y], ...]",
         "[[100.0, 250.0], [400.0, 300.0]]",
@@ -863,8 +863,43 @@ fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f6
     let Some(v) = v else { return Vec::new() };
     v.into_inner()
         .into_iter()
+        .map(|p| Spanned::new(p.span(), p.into_inner().0))
         .filter_map(|p| t.finite_point("waypoints_m", p, out))
         .collect()
+}
+
+/// A point `[x, y]` of exactly two numbers. serde reads `[f64; 2]` from the first two
+/// elements of a longer array and ignores the rest, so `[20.0, 20.0, 3.0]` passed.
+struct XY([f64; 2]);
+
+impl<'de> serde::Deserialize<'de> for XY {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<XY, D::Error> {
+        struct Two;
+        impl<'de> serde::de::Visitor<'de> for Two {
+            type Value = XY;
+            fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                f.write_str("an array of two numbers")
+            }
+            fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut seq: A) -> Result<XY, A::Error> {
+                use serde::de::{Error, IgnoredAny};
+                let mut xy = [0.0; 2];
+                for (i, c) in xy.iter_mut().enumerate() {
+                    *c = seq
+                        .next_element()?
+                        .ok_or_else(|| A::Error::invalid_length(i, &self))?;
+                }
+                let mut n = 2;
+                while seq.next_element::<IgnoredAny>()?.is_some() {
+                    n += 1;
+                }
+                if n != 2 {
+                    return Err(A::Error::invalid_length(n, &self));
+                }
+                Ok(XY(xy))
+            }
+        }
+        d.deserialize_seq(Two)
+    }
 }
 
 fn read_stops(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<SiteStopRaw> {
