@@ -398,6 +398,80 @@ fn giant_declared_sizes_are_refused_from_the_header() {
     );
 }
 
+/// ESRI ASCII grid headers and values that once slipped through: ncols x nrows that
+/// overflows a u64 (2^32 x 2^32 wrapped to 0 cells, under any limit), a corner that is not
+/// a number, and a value finite as f64 but not as f32 (1e39 read as elevation inf).
+#[test]
+fn ascii_grid_overflows_and_non_finite_numbers() {
+    let s = Scratch::new();
+    s.write(
+        "wrap.asc",
+        "ncols 4294967296\nnrows 4294967296\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n",
+    );
+    check_refused(
+        &s,
+        &["terrain", "info", "wrap.asc"],
+        "wrap.asc: the raster is 4294967296 x 4294967296 = 18446744073709551616 cells, more \
+         than the limit of 268435456 cells. Fix: crop or resample the raster, or raise the \
+         limit with --max-cells (in a mission file: max_cells under [terrain])",
+    );
+    s.write(
+        "wide.asc",
+        "ncols 99999999999\nnrows 99999999999\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n",
+    );
+    check_refused(
+        &s,
+        &["terrain", "info", "wide.asc"],
+        "wide.asc: the raster is 99999999999 x 99999999999 = 9999999999800000000001 cells, \
+         more than the limit of 268435456 cells. Fix: crop or resample the raster, or raise \
+         the limit with --max-cells (in a mission file: max_cells under [terrain])",
+    );
+    let ascii = |x: &str, y: &str, cell: &str, values: &str| {
+        format!("ncols 3\nnrows 2\nxllcorner {x}\nyllcorner {y}\ncellsize {cell}\n{values}")
+    };
+    s.write("nanx.asc", ascii("nan", "0", "1", "1 2 3\n4 5 6\n"));
+    check_refused(
+        &s,
+        &["terrain", "info", "nanx.asc"],
+        "nanx.asc: not a readable ESRI ASCII grid: line 3: xllcorner = nan is not a finite \
+         map coordinate. Fix: give the lower-left corner (or centre) in the grid's map units",
+    );
+    s.write("infy.asc", ascii("0", "-inf", "1", "1 2 3\n4 5 6\n"));
+    check_refused(
+        &s,
+        &["terrain", "info", "infy.asc"],
+        "infy.asc: not a readable ESRI ASCII grid: line 4: yllcorner = -inf is not a finite \
+         map coordinate. Fix: give the lower-left corner (or centre) in the grid's map units",
+    );
+    // A GeoTIFF whose tie point is not a number: refused by the checks every grid passes.
+    let mut georef = GeoRef::local(1.0);
+    georef.origin_x = f64::NAN;
+    let grid = Grid::from_vec(4, 3, vec![1.0; 12], georef);
+    let mut tif = Vec::new();
+    geotiff::write(&mut tif, &grid.georef, 4, 3, &[grid.data()]).unwrap();
+    s.write("nan_tie.tif", &tif);
+    check_refused(
+        &s,
+        &["terrain", "info", "nan_tie.tif"],
+        "nan_tie.tif: the grid's extent, x NaN to NaN and y -3 to 0, is not finite map \
+         coordinates. Fix: check the corner coordinates in the header or the georeference \
+         tags",
+    );
+    // 1e39 and -1e39 are beyond f32: no-data, as the GeoTIFF reader takes inf.
+    s.write("big.asc", ascii("0", "0", "1", "1 1e39 3\n4 -1e39 6\n"));
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .current_dir(s.dir.path())
+        .args(["terrain", "info", "big.asc", "--json"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["nodata_cells"], 2);
+    assert_eq!(v["z_max_m"], 6.0);
+    assert_eq!(v["z_min_m"], 1.0);
+}
+
 #[test]
 fn no_data_everywhere_is_refused_in_every_format() {
     let s = Scratch::new();
