@@ -1225,3 +1225,67 @@ fn points_on_the_terrains_outer_edge_are_inside() {
          coordinates inside the terrain (see `sunward terrain info`)",
     );
 }
+
+// ---------------------------------------------------------------------------------------
+// Output names
+
+/// `terrain slope -o x.png` wrote a GeoTIFF into x.png and `terrain hillshade -o hs.tif`
+/// a PNG into hs.tif; sunward could not read either back. An output whose extension is
+/// not the format written is refused before any work, and nothing is written.
+#[test]
+fn terrain_outputs_must_be_named_for_the_format_written() {
+    let s = Scratch::new();
+    s.write("plane.tif", plane_tif());
+    let cases: [(&[&str], &str); 6] = [
+        (
+            &["terrain", "slope", "plane.tif", "-o", "x.png"],
+            "x.png: slope writes a GeoTIFF, but the name ends in .png. Fix: name the file .tif",
+        ),
+        (
+            &["terrain", "aspect", "plane.tif", "-o", "aspect"],
+            "aspect: aspect writes a GeoTIFF, but the name has no extension. Fix: name the \
+             file .tif",
+        ),
+        (
+            &["terrain", "roughness", "plane.tif", "-o", "r.asc"],
+            "r.asc: roughness writes a GeoTIFF, but the name ends in .asc. Fix: name the file \
+             .tif",
+        ),
+        (
+            &["terrain", "hillshade", "plane.tif", "-o", "hs.tif"],
+            "hs.tif: hillshade writes a PNG picture, but the name ends in .tif. Fix: name the \
+             file .png",
+        ),
+        (
+            &["terrain", "horizon", "plane.tif", "-o", "hz.png"],
+            "hz.png: horizon writes a GeoTIFF, but the name ends in .png. Fix: name the file \
+             .tif",
+        ),
+        (
+            &["terrain", "synth", "--size", "16", "-o", "dem.png"],
+            "dem.png: synth writes a GeoTIFF, but the name ends in .png. Fix: name the file \
+             .tif",
+        ),
+    ];
+    for (args, want) in cases {
+        check_refused(&s, args, want);
+        let out = args[args.len() - 1];
+        assert!(!s.path(out).exists(), "{out} was written");
+    }
+    for (args, out) in [
+        (
+            &["terrain", "slope", "plane.tif", "-o", "S.TIFF"][..],
+            "S.TIFF",
+        ),
+        (
+            &["terrain", "hillshade", "plane.tif", "-o", "hs.PNG"][..],
+            "hs.PNG",
+        ),
+    ] {
+        let (code, err) = s.run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        assert!(s.path(out).exists());
+    }
+    let (code, err) = s.run(&["terrain", "info", "S.TIFF"]);
+    assert_eq!(code, 0, "{err}");
+}
