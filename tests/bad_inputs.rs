@@ -1289,3 +1289,47 @@ fn terrain_outputs_must_be_named_for_the_format_written() {
     let (code, err) = s.run(&["terrain", "info", "S.TIFF"]);
     assert_eq!(code, 0, "{err}");
 }
+
+// ---------------------------------------------------------------------------------------
+// Weather files
+
+/// A weather file's gap or empty cell once suggested "a linear gap fill", which no mission
+/// key offers. The fix names only what the user can do in the file.
+#[test]
+fn weather_gaps_and_empty_cells_name_real_remedies() {
+    let hours = |skip: &dyn Fn(u32) -> Option<&'static str>| {
+        let mut text = String::from("time,ghi_w_m2\n");
+        for h in 0..24 {
+            if let Some(v) = skip(h) {
+                text += &format!("2027-12-21T{h:02}:00:00Z,{v}\n");
+            }
+        }
+        text
+    };
+    let cases = [
+        (
+            hours(&|h| (!(5..9).contains(&h)).then_some("0")),
+            "w.csv: line 6: gap of 5 h after this line, the largest allowed is 2 x the median \
+             step (1 h). Fix: give the missing records (nothing is filled in), or keep only \
+             the records on one side of the gap if every season's run lies there",
+        ),
+        (
+            hours(&|h| Some(if h == 3 { "" } else { "0" })),
+            "w.csv: line 5: column 2 (ghi_w_m2): the value is missing. Fix: give the value, \
+             or delete the row if the rows either side stay within 2 x the median step of \
+             each other (nothing is filled in)",
+        ),
+    ];
+    for (csv, want) in cases {
+        let s = Scratch::new();
+        mission(
+            &s,
+            "m.toml",
+            "[weather]",
+            "[weather]\nsky = \"csv\"\nfile = \"w.csv\"",
+        );
+        s.write("w.csv", csv);
+        check_refused(&s, &["check", "m.toml"], want);
+        assert!(!want.contains("gap fill"));
+    }
+}
