@@ -398,6 +398,80 @@ fn giant_declared_sizes_are_refused_from_the_header() {
     );
 }
 
+/// ESRI ASCII grid headers and values that once slipped through: ncols x nrows that
+/// overflows a u64 (2^32 x 2^32 wrapped to 0 cells, under any limit), a corner that is not
+/// a number, and a value finite as f64 but not as f32 (1e39 read as elevation inf).
+#[test]
+fn ascii_grid_overflows_and_non_finite_numbers() {
+    let s = Scratch::new();
+    s.write(
+        "wrap.asc",
+        "ncols 4294967296\nnrows 4294967296\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n",
+    );
+    check_refused(
+        &s,
+        &["terrain", "info", "wrap.asc"],
+        "wrap.asc: the raster is 4294967296 x 4294967296 = 18446744073709551616 cells, more \
+         than the limit of 268435456 cells. Fix: crop or resample the raster, or raise the \
+         limit with --max-cells (in a mission file: max_cells under [terrain])",
+    );
+    s.write(
+        "wide.asc",
+        "ncols 99999999999\nnrows 99999999999\nxllcorner 0\nyllcorner 0\ncellsize 1\n1\n",
+    );
+    check_refused(
+        &s,
+        &["terrain", "info", "wide.asc"],
+        "wide.asc: the raster is 99999999999 x 99999999999 = 9999999999800000000001 cells, \
+         more than the limit of 268435456 cells. Fix: crop or resample the raster, or raise \
+         the limit with --max-cells (in a mission file: max_cells under [terrain])",
+    );
+    let ascii = |x: &str, y: &str, cell: &str, values: &str| {
+        format!("ncols 3\nnrows 2\nxllcorner {x}\nyllcorner {y}\ncellsize {cell}\n{values}")
+    };
+    s.write("nanx.asc", ascii("nan", "0", "1", "1 2 3\n4 5 6\n"));
+    check_refused(
+        &s,
+        &["terrain", "info", "nanx.asc"],
+        "nanx.asc: not a readable ESRI ASCII grid: line 3: xllcorner = nan is not a finite \
+         map coordinate. Fix: give the lower-left corner (or centre) in the grid's map units",
+    );
+    s.write("infy.asc", ascii("0", "-inf", "1", "1 2 3\n4 5 6\n"));
+    check_refused(
+        &s,
+        &["terrain", "info", "infy.asc"],
+        "infy.asc: not a readable ESRI ASCII grid: line 4: yllcorner = -inf is not a finite \
+         map coordinate. Fix: give the lower-left corner (or centre) in the grid's map units",
+    );
+    // A GeoTIFF whose tie point is not a number: refused by the checks every grid passes.
+    let mut georef = GeoRef::local(1.0);
+    georef.origin_x = f64::NAN;
+    let grid = Grid::from_vec(4, 3, vec![1.0; 12], georef);
+    let mut tif = Vec::new();
+    geotiff::write(&mut tif, &grid.georef, 4, 3, &[grid.data()]).unwrap();
+    s.write("nan_tie.tif", &tif);
+    check_refused(
+        &s,
+        &["terrain", "info", "nan_tie.tif"],
+        "nan_tie.tif: the grid's extent, x NaN to NaN and y -3 to 0, is not finite map \
+         coordinates. Fix: check the corner coordinates in the header or the georeference \
+         tags",
+    );
+    // 1e39 and -1e39 are beyond f32: no-data, as the GeoTIFF reader takes inf.
+    s.write("big.asc", ascii("0", "0", "1", "1 1e39 3\n4 -1e39 6\n"));
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .current_dir(s.dir.path())
+        .args(["terrain", "info", "big.asc", "--json"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["nodata_cells"], 2);
+    assert_eq!(v["z_max_m"], 6.0);
+    assert_eq!(v["z_min_m"], 1.0);
+}
+
 #[test]
 fn no_data_everywhere_is_refused_in_every_format() {
     let s = Scratch::new();
@@ -598,8 +672,52 @@ fn mission_files_with_wrong_types_and_impossible_values_are_refused() {
         (
             "[rover]",
             "[rover]\nmax_speed_m_s = nan",
-            "m.toml:10:17: rover.max_speed_m_s: got NaN, expected a number in (0, 20]. Fix: \
-             set `max_speed_m_s` inside (0, 20], or leave it out for the documented default",
+            "m.toml:10:17: rover.max_speed_m_s: got NaN, expected a finite number in (0, \
+             20]. Fix: set `max_speed_m_s` inside (0, 20], or leave it out for the documented \
+             default",
+        ),
+        // Keys whose bounds the sun or battery stage checks: a value that is not finite is
+        // refused here with the documented range, never the limits of an f64.
+        (
+            "[panels]",
+            "[panels]\narea_m2 = nan",
+            "m.toml:11:11: panels.area_m2: got NaN, expected a finite number in [0, 1000]. \
+             Fix: set `area_m2` inside [0, 1000], or leave it out for the documented default",
+        ),
+        (
+            "[weather]",
+            "[weather]\nair_temp_peak_h = inf",
+            "m.toml:13:19: weather.air_temp_peak_h: got inf, expected a finite number in [0, \
+             24]. Fix: set `air_temp_peak_h` inside [0, 24], or leave it out for the \
+             documented default",
+        ),
+        (
+            "[1.0, 2.0, 5.0,",
+            "[1.0, 2.0, -inf,",
+            "m.toml:13:19: weather.air_temp_mean_c: value -inf (at index 2) is not a finite \
+             number in [-90, 60]. Fix: keep every value of `air_temp_mean_c` inside [-90, 60]",
+        ),
+        // A point takes exactly two numbers: a third one used to pass unread.
+        (
+            "[31.0, 49.0]",
+            "[31.0, 49.0, 3.0]",
+            "m.toml:7:11: route.start_m: expected a point [x, y] of two numbers, got an array \
+             of 3 values. Fix: write it as a point [x, y] of two numbers, e.g. `start_m = \
+             [100.0, 250.0]`",
+        ),
+        (
+            "[31.0, 49.0]",
+            "[31.0]",
+            "m.toml:7:11: route.start_m: expected a point [x, y] of two numbers, got an array \
+             of 1 value. Fix: write it as a point [x, y] of two numbers, e.g. `start_m = \
+             [100.0, 250.0]`",
+        ),
+        (
+            "goal_m = [45.0, 15.0]",
+            "goal_m = [45.0, 15.0]\nwaypoints_m = [[40.0, 30.0], [1.0, 2.0, 3.0]]",
+            "m.toml:9:15: route.waypoints_m: expected an array of points [[x, y], ...], got an \
+             array of 2 values. Fix: write it as an array of points [[x, y], ...], e.g. \
+             `waypoints_m = [[100.0, 250.0], [400.0, 300.0]]`",
         ),
     ];
     for (from, to, want) in cases {
@@ -942,4 +1060,277 @@ fn fuzz_found_ascii_grid_that_is_not_text() {
          UTF-8). Fix: an ESRI ASCII grid is plain text; check that this is not a binary \
          raster with the wrong extension",
     );
+}
+
+// ---------------------------------------------------------------------------------------
+// Flags
+
+/// `sun --tilt-deg 200` once named the tilt in radians (3.49...) under a degree name, and
+/// a panel azimuth up to ±1000 radians passed. Both are checked and named in degrees.
+#[test]
+fn panel_plane_flags_are_checked_and_named_in_degrees() {
+    let s = Scratch::new();
+    let at = [
+        "sun",
+        "--lat",
+        "45",
+        "--lon",
+        "0",
+        "--time",
+        "2027-06-21T12:00:00Z",
+    ];
+    let with = |tilt: &str, az: &str| {
+        let mut args = at.to_vec();
+        args.extend(["--tilt-deg", tilt, "--panel-azimuth-deg", az]);
+        args.into_iter().map(String::from).collect::<Vec<_>>()
+    };
+    let refused = [
+        (
+            with("200", "0"),
+            "tilt_deg = 200: expected degrees from 0 (flat) to 180 (facing down). Fix: give \
+             the panel tilt from horizontal in degrees (--tilt-deg)",
+        ),
+        (
+            with("30", "1000"),
+            "panel_azimuth_deg = 1000: expected degrees clockwise from north, -360 to 360. \
+             Fix: give the azimuth the panel faces (--panel-azimuth-deg), e.g. 180 for south",
+        ),
+        (
+            with("30", "-360.5"),
+            "panel_azimuth_deg = -360.5: expected degrees clockwise from north, -360 to 360. \
+             Fix: give the azimuth the panel faces (--panel-azimuth-deg), e.g. 180 for south",
+        ),
+    ];
+    for (args, want) in refused {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        check_refused(&s, &args, want);
+    }
+    for (tilt, az) in [("180", "-360"), ("0", "360"), ("90", "-90")] {
+        let args = with(tilt, az);
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let (code, err) = s.run(&args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+    }
+}
+
+/// `size --json` on a mission no size can save (polar night, daylight-only driving) once
+/// printed the plain-text sentence to stdout. It prints the documented object, with
+/// `value` null and the reason, and exits 1.
+#[test]
+fn size_json_when_no_size_passes_is_still_json() {
+    let s = Scratch::new();
+    mission(&s, "m.toml", "lat_deg = 45.0", "lat_deg = 80.0");
+    let text = std::fs::read_to_string(s.path("m.toml")).unwrap().replace(
+        "[battery]",
+        "[battery]\ncapacity_wh = 1000.0\nnominal_voltage_v = 25.6",
+    );
+    s.write(
+        "m.toml",
+        text + "[seasons]\nmode = \"dates\"\ndates = [\"2027-12-21\"]\n",
+    );
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .current_dir(s.dir.path())
+        .args(["size", "m.toml", "--what", "battery", "--json", "-q"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let v: Value = serde_json::from_slice(&out.stdout).expect("stdout is JSON");
+    let mut keys: Vec<&str> = v.as_object().unwrap().keys().map(|k| k.as_str()).collect();
+    keys.sort();
+    assert_eq!(
+        keys,
+        [
+            "binding_season",
+            "binding_time",
+            "cautions",
+            "error",
+            "failing_below",
+            "failing_reason",
+            "failing_season",
+            "key",
+            "margin",
+            "min_soc",
+            "mission_value",
+            "simulations",
+            "tolerance",
+            "unit",
+            "value"
+        ]
+    );
+    assert_eq!(v["key"], "battery.capacity_wh");
+    assert_eq!(v["value"], Value::Null);
+    assert_eq!(v["failing_below"], 1e7);
+    assert_eq!(
+        v["failing_reason"],
+        "did not arrive: no driving hours in the whole run (under a daylight-only policy \
+         this is polar night), 0 of 40 m driven"
+    );
+    let error = v["error"].as_str().unwrap();
+    assert!(
+        error.starts_with("no battery.capacity_wh up to 10000000 Wh makes every season"),
+        "{error}"
+    );
+}
+
+// ---------------------------------------------------------------------------------------
+// Points on the terrain's edge
+
+/// A point exactly on the east or south edge of the terrain was refused as lying outside
+/// an extent the message quoted as including it. The extent is closed: [`terrain`]'s
+/// corners (0 or 60 in x and y) are accepted by `route` and by `check`; a point beyond
+/// the edge is still refused.
+#[test]
+fn points_on_the_terrains_outer_edge_are_inside() {
+    let s = Scratch::new();
+    terrain(&s);
+    for from in ["60,0", "0,0", "60,60", "0,60", "60,30", "30,0"] {
+        let (code, err) = s.run(&[
+            "route",
+            "--terrain",
+            "dem.asc",
+            "--from",
+            from,
+            "--to",
+            "31,49",
+        ]);
+        assert_eq!(code, 0, "--from {from}: {err}");
+    }
+    check_refused(
+        &s,
+        &[
+            "route",
+            "--terrain",
+            "dem.asc",
+            "--from",
+            "60.5,0",
+            "--to",
+            "31,49",
+        ],
+        "the start (60.5, 0) lies outside the terrain, which covers x 0 .. 60 and y 0 .. 60 \
+         (in the DEM's CRS units). Fix: give a point inside the terrain",
+    );
+    for start in ["[60.0, 0.0]", "[0.0, 0.0]", "[60.0, 60.0]"] {
+        let s = Scratch::new();
+        mission(&s, "m.toml", "[31.0, 49.0]", start);
+        let (code, err) = s.run(&["check", "m.toml"]);
+        assert_eq!(code, 0, "start_m = {start}: {err}");
+    }
+    let s = Scratch::new();
+    mission(&s, "m.toml", "[31.0, 49.0]", "[60.0, -0.5]");
+    check_refused(
+        &s,
+        &["check", "m.toml"],
+        "m.toml: the mission file has 1 problem(s):\nm.toml:7:11: route.start_m: start (60, \
+         -0.5) lies outside the terrain, which spans x 0 to 60 and y 0 to 60. Fix: give map \
+         coordinates inside the terrain (see `sunward terrain info`)",
+    );
+}
+
+// ---------------------------------------------------------------------------------------
+// Output names
+
+/// `terrain slope -o x.png` wrote a GeoTIFF into x.png and `terrain hillshade -o hs.tif`
+/// a PNG into hs.tif; sunward could not read either back. An output whose extension is
+/// not the format written is refused before any work, and nothing is written.
+#[test]
+fn terrain_outputs_must_be_named_for_the_format_written() {
+    let s = Scratch::new();
+    s.write("plane.tif", plane_tif());
+    let cases: [(&[&str], &str); 6] = [
+        (
+            &["terrain", "slope", "plane.tif", "-o", "x.png"],
+            "x.png: slope writes a GeoTIFF, but the name ends in .png. Fix: name the file .tif",
+        ),
+        (
+            &["terrain", "aspect", "plane.tif", "-o", "aspect"],
+            "aspect: aspect writes a GeoTIFF, but the name has no extension. Fix: name the \
+             file .tif",
+        ),
+        (
+            &["terrain", "roughness", "plane.tif", "-o", "r.asc"],
+            "r.asc: roughness writes a GeoTIFF, but the name ends in .asc. Fix: name the file \
+             .tif",
+        ),
+        (
+            &["terrain", "hillshade", "plane.tif", "-o", "hs.tif"],
+            "hs.tif: hillshade writes a PNG picture, but the name ends in .tif. Fix: name the \
+             file .png",
+        ),
+        (
+            &["terrain", "horizon", "plane.tif", "-o", "hz.png"],
+            "hz.png: horizon writes a GeoTIFF, but the name ends in .png. Fix: name the file \
+             .tif",
+        ),
+        (
+            &["terrain", "synth", "--size", "16", "-o", "dem.png"],
+            "dem.png: synth writes a GeoTIFF, but the name ends in .png. Fix: name the file \
+             .tif",
+        ),
+    ];
+    for (args, want) in cases {
+        check_refused(&s, args, want);
+        let out = args[args.len() - 1];
+        assert!(!s.path(out).exists(), "{out} was written");
+    }
+    for (args, out) in [
+        (
+            &["terrain", "slope", "plane.tif", "-o", "S.TIFF"][..],
+            "S.TIFF",
+        ),
+        (
+            &["terrain", "hillshade", "plane.tif", "-o", "hs.PNG"][..],
+            "hs.PNG",
+        ),
+    ] {
+        let (code, err) = s.run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        assert!(s.path(out).exists());
+    }
+    let (code, err) = s.run(&["terrain", "info", "S.TIFF"]);
+    assert_eq!(code, 0, "{err}");
+}
+
+// ---------------------------------------------------------------------------------------
+// Weather files
+
+/// A weather file's gap or empty cell once suggested "a linear gap fill", which no mission
+/// key offers. The fix names only what the user can do in the file.
+#[test]
+fn weather_gaps_and_empty_cells_name_real_remedies() {
+    let hours = |skip: &dyn Fn(u32) -> Option<&'static str>| {
+        let mut text = String::from("time,ghi_w_m2\n");
+        for h in 0..24 {
+            if let Some(v) = skip(h) {
+                text += &format!("2027-12-21T{h:02}:00:00Z,{v}\n");
+            }
+        }
+        text
+    };
+    let cases = [
+        (
+            hours(&|h| (!(5..9).contains(&h)).then_some("0")),
+            "w.csv: line 6: gap of 5 h after this line, the largest allowed is 2 x the median \
+             step (1 h). Fix: give the missing records (nothing is filled in), or keep only \
+             the records on one side of the gap if every season's run lies there",
+        ),
+        (
+            hours(&|h| Some(if h == 3 { "" } else { "0" })),
+            "w.csv: line 5: column 2 (ghi_w_m2): the value is missing. Fix: give the value, \
+             or delete the row if the rows either side stay within 2 x the median step of \
+             each other (nothing is filled in)",
+        ),
+    ];
+    for (csv, want) in cases {
+        let s = Scratch::new();
+        mission(
+            &s,
+            "m.toml",
+            "[weather]",
+            "[weather]\nsky = \"csv\"\nfile = \"w.csv\"",
+        );
+        s.write("w.csv", csv);
+        check_refused(&s, &["check", "m.toml"], want);
+        assert!(!want.contains("gap fill"));
+    }
 }

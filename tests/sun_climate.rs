@@ -316,7 +316,8 @@ fn gap_is_an_error_naming_line_and_length() {
     assert_eq!(
         err(&text),
         "line 5: gap of 3 h 10 min after this line, the largest allowed is 2 x the median \
-         step (10 min). Fix: give the missing records, or ask for a linear gap fill"
+         step (10 min). Fix: give the missing records (nothing is filled in), or keep only \
+         the records on one side of the gap if every season's run lies there"
     );
 }
 
@@ -371,8 +372,9 @@ fn bad_cells_name_line_and_column() {
     );
     assert_eq!(
         err("time,ghi_w_m2\n2031-06-21T10:00:00Z,\n2031-06-21T10:10:00Z,2\n"),
-        "line 2: column 2 (ghi_w_m2): the value is missing. Fix: give the value, or ask for \
-         a linear gap fill"
+        "line 2: column 2 (ghi_w_m2): the value is missing. Fix: give the value, or delete \
+         the row if the rows either side stay within 2 x the median step of each other \
+         (nothing is filled in)"
     );
 }
 

@@ -92,11 +92,22 @@ pub struct SunArgs {
     /// Linke turbidity for the clear sky (one value for every month).
     #[arg(long, value_name = "TL", default_value_t = DEFAULT_LINKE_TURBIDITY)]
     linke: f64,
-    /// Panel tilt from horizontal, degrees (plane-of-array output; series default 0).
-    #[arg(long, value_name = "DEG", requires = "panel_azimuth_deg")]
+    /// Panel tilt from horizontal, degrees from 0 to 180 (plane-of-array output; series
+    /// default 0).
+    #[arg(
+        long,
+        value_name = "DEG",
+        requires = "panel_azimuth_deg",
+        allow_hyphen_values = true
+    )]
     tilt_deg: Option<f64>,
-    /// Azimuth the panel faces, degrees clockwise from north.
-    #[arg(long, value_name = "DEG", requires = "tilt_deg")]
+    /// Azimuth the panel faces, degrees clockwise from north, -360 to 360.
+    #[arg(
+        long,
+        value_name = "DEG",
+        requires = "tilt_deg",
+        allow_hyphen_values = true
+    )]
     panel_azimuth_deg: Option<f64>,
     /// Ground albedo for the plane-of-array ground term (0.2 bare soil, 0.8 fresh snow).
     #[arg(long, value_name = "FRACTION", default_value_t = ALBEDO_BARE_SOIL)]

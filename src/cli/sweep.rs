@@ -401,6 +401,50 @@ fn round_sig(v: f64) -> String {
     format!("{v:.decimals$}")
 }
 
+/// The `size --json` object when no size passes: the keys of a found size, with `value`
+/// null, the largest size tried as `failing_below` (it failed), and the message as `error`.
+/// None for the errors that are bad input rather than a verdict.
+fn no_size_json(e: &SizeError, what: What) -> Option<serde_json::Value> {
+    let (mission_value, failing_below, season, reason, simulations) = match e {
+        SizeError::NoneUpTo {
+            max,
+            season,
+            reason,
+            mission_value,
+            evaluations,
+            ..
+        } => (
+            *mission_value,
+            Some(*max),
+            Some(season.as_str()),
+            reason.as_str(),
+            *evaluations,
+        ),
+        SizeError::Unplannable {
+            reason,
+            mission_value,
+        } => (*mission_value, None, None, reason.as_str(), 0),
+        SizeError::Case(_) | SizeError::Tolerance(_) => return None,
+    };
+    Some(serde_json::json!({
+        "key": what.key(),
+        "unit": what.unit(),
+        "value": null,
+        "mission_value": mission_value,
+        "failing_below": failing_below,
+        "tolerance": null,
+        "binding_season": null,
+        "binding_time": null,
+        "min_soc": null,
+        "margin": null,
+        "failing_season": season,
+        "failing_reason": reason,
+        "simulations": simulations,
+        "cautions": CAUTIONS,
+        "error": e.to_string(),
+    }))
+}
+
 pub fn run_size(a: SizeArgs) -> Result<(), Error> {
     let m = load_mission(&a.mission)?;
     let base = a.mission.parent().unwrap_or(Path::new("")).to_path_buf();
@@ -431,6 +475,7 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
                     "failing_reason": s.at_failing.as_ref().map(|o| o.binding_reason.clone()),
                     "simulations": s.evaluations,
                     "cautions": CAUTIONS,
+                    "error": null,
                 });
                 crate::say!(
                     "{}",
@@ -466,10 +511,20 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
             crate::say!("(a planning aid: add your own margin and confirm by field tests; see README, Model limits and cautions)");
             Ok(())
         }
-        Err(e @ (SizeError::NoneUpTo { .. } | SizeError::Unplannable(_))) => {
-            crate::say!("{}: {e}", m.site.name);
+        Err(e) => {
+            // No size passes (exit 1, a verdict) or the input is bad (exit 2).
+            let Some(doc) = no_size_json(&e, what) else {
+                return Err(Error::Usage(e.to_string()));
+            };
+            if a.json {
+                crate::say!(
+                    "{}",
+                    serde_json::to_string_pretty(&doc).expect("plain data")
+                );
+            } else {
+                crate::say!("{}: {e}", m.site.name);
+            }
             std::process::exit(1);
         }
-        Err(e) => Err(Error::Usage(e.to_string())),
     }
 }

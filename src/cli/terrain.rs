@@ -199,6 +199,53 @@ pub fn write_hillshade(out: &Path, dem: &Dem, az_deg: f64, alt_deg: f64) -> Resu
     })
 }
 
+/// The two formats the terrain commands write.
+#[derive(Debug, Clone, Copy)]
+enum Written {
+    GeoTiff,
+    Png,
+}
+
+impl Written {
+    fn name(self) -> &'static str {
+        match self {
+            Written::GeoTiff => "a GeoTIFF",
+            Written::Png => "a PNG picture",
+        }
+    }
+
+    /// Extensions that name the format (as `read_dem` tells formats apart).
+    fn extensions(self) -> &'static [&'static str] {
+        match self {
+            Written::GeoTiff => &["tif", "tiff", "gtiff"],
+            Written::Png => &["png"],
+        }
+    }
+}
+
+/// Refuses an output name whose extension is not the format `command` writes: a GeoTIFF
+/// written to x.png (or a PNG to x.tif) could not be read back by sunward or anyone.
+fn check_extension(out: &Path, command: &str, format: Written) -> Result<(), Error> {
+    let ext = out
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase);
+    let wants = format.extensions();
+    if ext.as_deref().is_some_and(|e| wants.contains(&e)) {
+        return Ok(());
+    }
+    let given = match &ext {
+        Some(e) => format!("the name ends in .{e}"),
+        None => "the name has no extension".to_string(),
+    };
+    Err(Error::Usage(format!(
+        "{}: {command} writes {}, but {given}. Fix: name the file .{}",
+        out.display(),
+        format.name(),
+        wants[0]
+    )))
+}
+
 fn check_angle(name: &str, v: f64, lo: f64, hi: f64) -> Result<(), Error> {
     if v.is_finite() && (lo..=hi).contains(&v) {
         Ok(())
@@ -223,22 +270,25 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
                 print_info(&info);
             }
         }
-        TerrainCommand::Slope(a) => map_command(&a, |d| degrees(&slope::slope_map(d)))?,
-        TerrainCommand::Aspect(a) => map_command(&a, |d| degrees(&slope::aspect_map(d)))?,
+        TerrainCommand::Slope(a) => map_command(&a, "slope", |d| degrees(&slope::slope_map(d)))?,
+        TerrainCommand::Aspect(a) => map_command(&a, "aspect", |d| degrees(&slope::aspect_map(d)))?,
         TerrainCommand::Roughness(a) => {
-            map_command(&a, |d| roughness::roughness_map(d).into_vec())?
+            map_command(&a, "roughness", |d| roughness::roughness_map(d).into_vec())?
         }
         TerrainCommand::Hillshade(a) => {
             check_angle("--azimuth-deg", a.azimuth_deg, -360.0, 360.0)?;
             check_angle("--altitude-deg", a.altitude_deg, 0.0, 90.0)?;
+            check_extension(&a.out, "hillshade", Written::Png)?;
             check_output(&a.out, &[&a.dem.dem])?;
             let dem = a.dem.load()?;
             write_hillshade(&a.out, &dem, a.azimuth_deg, a.altitude_deg)?;
             eprintln!("wrote {}", a.out.display());
         }
         TerrainCommand::Horizon(a) => {
+            check_extension(&a.out, "horizon", Written::GeoTiff)?;
             check_output(&a.out, &[&a.dem.dem])?;
             if let Some(s) = &a.sky_view {
+                check_extension(s, "horizon --sky-view", Written::GeoTiff)?;
                 check_output(s, &[&a.dem.dem])?;
             }
             let dem = a.dem.load()?;
@@ -267,6 +317,7 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
             }
         }
         TerrainCommand::Synth(a) => {
+            check_extension(&a.out, "synth", Written::GeoTiff)?;
             check_output(&a.out, &[])?;
             let dem = synthesize(&SynthParams {
                 size: a.size,
@@ -289,7 +340,8 @@ pub fn run(cmd: TerrainCommand) -> Result<(), Error> {
     Ok(())
 }
 
-fn map_command(a: &MapArgs, f: impl Fn(&Dem) -> Vec<f32>) -> Result<(), Error> {
+fn map_command(a: &MapArgs, command: &str, f: impl Fn(&Dem) -> Vec<f32>) -> Result<(), Error> {
+    check_extension(&a.out, command, Written::GeoTiff)?;
     check_output(&a.out, &[&a.dem.dem])?;
     let dem = a.dem.load()?;
     let values = f(&dem);

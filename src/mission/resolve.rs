@@ -1565,9 +1565,18 @@ pub fn points_off_dem(route: &RoutePlan, dem: &crate::terrain::Dem) -> Vec<Probl
 }
 
 fn off_dem(p: &PlacedPoint, dem: &crate::terrain::Dem) -> Option<Problem> {
-    let (px, py) = dem.georef.to_pixel(p.point.x, p.point.y);
-    let inside = px >= 0.0 && py >= 0.0 && px < dem.width() as f64 && py < dem.height() as f64;
-    let detail = if !inside {
+    let cell = dem
+        .georef
+        .cell_at(p.point.x, p.point.y, dem.width(), dem.height());
+    let detail = if let Some((col, row)) = cell {
+        if !dem.get(col, row).is_nan() {
+            return None;
+        }
+        format!(
+            "{} ({}, {}) lies on a no-data cell",
+            p.point.label, p.point.x, p.point.y
+        )
+    } else {
         let g = &dem.georef;
         let (x1, y0) = (
             g.origin_x + dem.width() as f64 * g.pixel_width,
@@ -1577,13 +1586,6 @@ fn off_dem(p: &PlacedPoint, dem: &crate::terrain::Dem) -> Option<Problem> {
             "{} ({}, {}) lies outside the terrain, which spans x {} to {} and y {} to {}",
             p.point.label, p.point.x, p.point.y, g.origin_x, x1, y0, g.origin_y
         )
-    } else if dem.get(px as usize, py as usize).is_nan() {
-        format!(
-            "{} ({}, {}) lies on a no-data cell",
-            p.point.label, p.point.x, p.point.y
-        )
-    } else {
-        return None;
     };
     Some(Problem {
         key: p.key.clone(),
@@ -1603,9 +1605,10 @@ pub fn points_in_keep_out(
 ) -> Vec<Problem> {
     let on_grid = (mask.width(), mask.height()) == (dem.width(), dem.height());
     let closed = |p: &PlacedPoint| {
-        let (px, py) = dem.georef.to_pixel(p.point.x, p.point.y);
-        let inside = px >= 0.0 && py >= 0.0 && px < dem.width() as f64 && py < dem.height() as f64;
-        on_grid && inside && !mask.get(px as usize, py as usize).is_nan()
+        let cell = dem
+            .georef
+            .cell_at(p.point.x, p.point.y, dem.width(), dem.height());
+        on_grid && cell.is_some_and(|(col, row)| !mask.get(col, row).is_nan())
     };
     route
         .points()

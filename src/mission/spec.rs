@@ -283,6 +283,9 @@ pub struct Interval {
     hi: f64,
     lo_open: bool,
     hi_open: bool,
+    /// The bounds are checked by a later stage (with its own message); here only
+    /// finiteness is, and the bounds only name the documented range in that message.
+    stage_checks_bounds: bool,
 }
 
 impl Interval {
@@ -293,6 +296,7 @@ impl Interval {
             hi,
             lo_open: false,
             hi_open: false,
+            stage_checks_bounds: false,
         }
     }
 
@@ -303,6 +307,7 @@ impl Interval {
             hi,
             lo_open: true,
             hi_open: false,
+            stage_checks_bounds: false,
         }
     }
 
@@ -313,6 +318,7 @@ impl Interval {
             hi,
             lo_open: false,
             hi_open: true,
+            stage_checks_bounds: false,
         }
     }
 
@@ -323,11 +329,24 @@ impl Interval {
             hi,
             lo_open: true,
             hi_open: true,
+            stage_checks_bounds: false,
         }
     }
 
-    /// Whether `v` lies inside.
+    /// [lo, hi] as documented, but only finiteness is checked here: a later stage checks
+    /// the bounds with its own message (one source for the range of its parameters).
+    pub const fn stage_checked(lo: f64, hi: f64) -> Interval {
+        Interval {
+            stage_checks_bounds: true,
+            ..Interval::closed(lo, hi)
+        }
+    }
+
+    /// Whether `v` lies inside (a value that is not finite never does).
     pub fn contains(&self, v: f64) -> bool {
+        if self.stage_checks_bounds {
+            return v.is_finite();
+        }
         let above = if self.lo_open {
             v > self.lo
         } else {
@@ -349,9 +368,6 @@ impl fmt::Display for Interval {
         write!(f, "{open}{}, {}{close}", self.lo, self.hi)
     }
 }
-
-/// Any finite number (for keys whose range a stage checks).
-const ANY: Interval = Interval::closed(f64::MIN, f64::MAX);
 
 /// Collects problems with positions taken from byte ranges of the text.
 pub struct Problems<'t> {
@@ -480,15 +496,16 @@ pub struct Reader<'a, 'i> {
 }
 
 /// The TOML type a value should have, for messages.
-fn type_name(v: &DeValue<'_>) -> &'static str {
+fn type_name(v: &DeValue<'_>) -> std::borrow::Cow<'static, str> {
     match v {
-        DeValue::String(_) => "text",
-        DeValue::Integer(_) => "an integer",
-        DeValue::Float(_) => "a number",
-        DeValue::Boolean(_) => "true/false",
-        DeValue::Datetime(_) => "a date",
-        DeValue::Array(_) => "an array",
-        DeValue::Table(_) => "a table",
+        DeValue::String(_) => "text".into(),
+        DeValue::Integer(_) => "an integer".into(),
+        DeValue::Float(_) => "a number".into(),
+        DeValue::Boolean(_) => "true/false".into(),
+        DeValue::Datetime(_) => "a date".into(),
+        DeValue::Array(a) if a.len() == 1 => "an array of 1 value".into(),
+        DeValue::Array(a) => format!("an array of {} values", a.len()).into(),
+        DeValue::Table(_) => "a table".into(),
     }
 }
 
@@ -592,10 +609,15 @@ impl<'a, 'i> Reader<'a, 'i> {
         if range.contains(*v.get_ref()) {
             return Some(v);
         }
+        let what = if v.get_ref().is_finite() {
+            "a number"
+        } else {
+            "a finite number"
+        };
         out.add(
             &self.full(key),
             Some(v.span()),
-            format!("got {}, expected a number in {range}", v.get_ref()),
+            format!("got {}, expected {what} in {range}", v.get_ref()),
             format!("set `{key}` inside {range}, or leave it out for the documented default"),
         );
         None
@@ -642,9 +664,8 @@ impl<'a, 'i> Reader<'a, 'i> {
 
     /// A map point `[x, y]` in metres.
     pub fn point(&mut self, key: &'static str, out: &mut Problems<'_>) -> Option<Val<[f64; 2]>> {
-        let v =
-            self.typed::<[f64; 2]>(key, "a point [x, y] of two numbers", "[100.0, 250.0]", out)?;
-        self.finite_point(key, v, out)
+        let v = self.typed::<XY>(key, "a point [x, y] of two numbers", "[100.0, 250.0]", out)?;
+        self.finite_point(key, Spanned::new(v.span(), v.into_inner().0), out)
     }
 
     fn finite_point(
@@ -689,10 +710,15 @@ impl<'a, 'i> Reader<'a, 'i> {
             .enumerate()
             .find(|(_, x)| !range.contains(**x))
         {
+            let what = if x.is_finite() {
+                "is outside"
+            } else {
+                "is not a finite number in"
+            };
             out.add(
                 &self.full(key),
                 Some(v.span()),
-                format!("value {} (at index {i}) is outside {range}", x),
+                format!("value {x} (at index {i}) {what} {range}"),
                 format!("keep every value of `{key}` inside {range}"),
             );
             return None;
@@ -828,7 +854,7 @@ fn read_connectivity(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Option<V
 }
 
 fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f64; 2]>> {
-    let v = t.typed::<Vec<Spanned<[f64; 2]>>>(
+    let v = t.typed::<Vec<Spanned<XY>>>(
         "waypoints_m",
         "an array of points [[x, y], ...]",
         "[[100.0, 250.0], [400.0, 300.0]]",
@@ -837,8 +863,43 @@ fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f6
     let Some(v) = v else { return Vec::new() };
     v.into_inner()
         .into_iter()
+        .map(|p| Spanned::new(p.span(), p.into_inner().0))
         .filter_map(|p| t.finite_point("waypoints_m", p, out))
         .collect()
+}
+
+/// A point `[x, y]` of exactly two numbers. serde reads `[f64; 2]` from the first two
+/// elements of a longer array and ignores the rest, so `[20.0, 20.0, 3.0]` passed.
+struct XY([f64; 2]);
+
+impl<'de> serde::Deserialize<'de> for XY {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<XY, D::Error> {
+        struct Two;
+        impl<'de> serde::de::Visitor<'de> for Two {
+            type Value = XY;
+            fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                f.write_str("an array of two numbers")
+            }
+            fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut seq: A) -> Result<XY, A::Error> {
+                use serde::de::{Error, IgnoredAny};
+                let mut xy = [0.0; 2];
+                for (i, c) in xy.iter_mut().enumerate() {
+                    *c = seq
+                        .next_element()?
+                        .ok_or_else(|| A::Error::invalid_length(i, &self))?;
+                }
+                let mut n = 2;
+                while seq.next_element::<IgnoredAny>()?.is_some() {
+                    n += 1;
+                }
+                if n != 2 {
+                    return Err(A::Error::invalid_length(n, &self));
+                }
+                Ok(XY(xy))
+            }
+        }
+        d.deserialize_seq(Two)
+    }
 }
 
 fn read_stops(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<SiteStopRaw> {
@@ -887,12 +948,16 @@ pub const CELL_MODELS: [&str; 2] = ["faiman", "noct"];
 fn read_panels(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> PanelsRaw {
     // The electrical keys' ranges are the sun stage's (`Panel::validate`, in resolve).
     PanelsRaw {
-        area_m2: t.num("area_m2", ANY, out),
-        efficiency_stc: t.num("efficiency_stc", ANY, out),
-        temp_coeff_per_k: t.num("temp_coeff_per_k", ANY, out),
-        soiling_loss: t.num("soiling_loss", ANY, out),
-        mppt_efficiency: t.num("mppt_efficiency", ANY, out),
-        wiring_efficiency: t.num("wiring_efficiency", ANY, out),
+        area_m2: t.num("area_m2", Interval::stage_checked(0.0, 1000.0), out),
+        efficiency_stc: t.num("efficiency_stc", Interval::stage_checked(0.0, 0.5), out),
+        temp_coeff_per_k: t.num(
+            "temp_coeff_per_k",
+            Interval::stage_checked(-0.02, 0.01),
+            out,
+        ),
+        soiling_loss: t.num("soiling_loss", Interval::stage_checked(0.0, 1.0), out),
+        mppt_efficiency: t.num("mppt_efficiency", Interval::stage_checked(0.0, 1.0), out),
+        wiring_efficiency: t.num("wiring_efficiency", Interval::stage_checked(0.0, 1.0), out),
         cell_temperature: t.choice("cell_temperature", &CELL_MODELS, out),
         faiman_u0_w_m2_k: t.num("faiman_u0_w_m2_k", Interval::open_lo(0.0, 200.0), out),
         faiman_u1_w_s_m3_k: t.num("faiman_u1_w_s_m3_k", Interval::closed(0.0, 100.0), out),
@@ -921,9 +986,19 @@ fn read_weather(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> WeatherRaw {
         sky_model: t.choice("sky_model", &SKY_MODELS, out),
         wind_m_s: t.num("wind_m_s", Interval::closed(0.0, 60.0), out),
         // Climate ranges are the battery stage's (`MonthlyClimate::validate`, in resolve).
-        air_temp_mean_c: t.nums("air_temp_mean_c", Some(12), ANY, out),
-        air_temp_swing_c: t.nums("air_temp_swing_c", Some(12), ANY, out),
-        air_temp_peak_h: t.num("air_temp_peak_h", ANY, out),
+        air_temp_mean_c: t.nums(
+            "air_temp_mean_c",
+            Some(12),
+            Interval::stage_checked(-90.0, 60.0),
+            out,
+        ),
+        air_temp_swing_c: t.nums(
+            "air_temp_swing_c",
+            Some(12),
+            Interval::stage_checked(0.0, 40.0),
+            out,
+        ),
+        air_temp_peak_h: t.num("air_temp_peak_h", Interval::stage_checked(0.0, 24.0), out),
     }
 }
 

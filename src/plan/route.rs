@@ -93,9 +93,8 @@ pub fn locate<M: StepModel + ?Sized>(
 ) -> Result<usize, PlanError> {
     let grid = planner.dem;
     let g = &grid.georef;
-    let (px, py) = g.to_pixel(p.x, p.y);
     let (w, h) = (grid.width(), grid.height());
-    if !(px >= 0.0 && py >= 0.0 && px < w as f64 && py < h as f64) {
+    let Some((col, row)) = g.cell_at(p.x, p.y, w, h) else {
         return Err(PlanError::Outside {
             what: p.label.clone(),
             x: p.x,
@@ -105,8 +104,8 @@ pub fn locate<M: StepModel + ?Sized>(
             y0: g.origin_y - h as f64 * g.pixel_height,
             y1: g.origin_y,
         });
-    }
-    let cell = py.floor() as usize * w + px.floor() as usize;
+    };
+    let cell = row * w + col;
     if let Some(why) = planner.flags.blocked(cell) {
         return Err(PlanError::OnBlockedCell {
             what: p.label.clone(),

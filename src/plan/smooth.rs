@@ -83,12 +83,10 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
 
     /// Elevation and cell at a map point, or None outside, on no-data or in a block.
     fn probe(&self, p: PathPoint) -> Option<(f64, usize)> {
-        let (px, py) = self.dem.georef.to_pixel(p.x, p.y);
         let (w, h) = (self.dem.width(), self.dem.height());
-        if !(px >= 0.0 && py >= 0.0 && px < w as f64 && py < h as f64) {
-            return None;
-        }
-        let cell = py.floor() as usize * w + px.floor() as usize;
+        let (col, row) = self.dem.georef.cell_at(p.x, p.y, w, h)?;
+        let (px, py) = self.dem.georef.to_pixel(p.x, p.y);
+        let cell = row * w + col;
         if self.flags.blocked(cell).is_some() {
             return None;
         }

@@ -100,10 +100,19 @@ pub enum SizeError {
         season: String,
         /// Its reason.
         reason: String,
+        /// The mission's own value.
+        mission_value: f64,
+        /// Simulations of the whole mission made.
+        evaluations: usize,
     },
     /// The route cannot be planned, so no size helps.
-    #[error("the route cannot be planned, so no size helps: {0}")]
-    Unplannable(String),
+    #[error("the route cannot be planned, so no size helps: {reason}")]
+    Unplannable {
+        /// Why the planner failed.
+        reason: String,
+        /// The mission's own value.
+        mission_value: f64,
+    },
     /// The mission or a case of it is not valid.
     #[error("{0}")]
     Case(String),
@@ -138,7 +147,10 @@ pub fn size(
     };
     let planned: Result<Planned, PlanError> = study.plan(&base).map_err(SizeError::Case)?;
     if let Err(e) = &planned {
-        return Err(SizeError::Unplannable(e.to_string()));
+        return Err(SizeError::Unplannable {
+            reason: e.to_string(),
+            mission_value,
+        });
     }
     let (min, max) = what.range();
     let mut evaluations = 0;
@@ -193,6 +205,8 @@ pub fn size(
                     unit: what.unit(),
                     season: o.binding_season,
                     reason: o.binding_reason,
+                    mission_value,
+                    evaluations,
                 });
             }
             let v = (lo * 2.0).min(max);

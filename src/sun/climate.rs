@@ -339,7 +339,11 @@ fn parse_row(
         return Err(input_err(
             line,
             format!("column {} (ghi_w_m2): the value is missing", c.ghi + 1),
-            "give the value, or ask for a linear gap fill",
+            format!(
+                "give the value, or delete the row if the rows either side stay within {} x \
+                 the median step of each other (nothing is filled in)",
+                o.max_gap_factor
+            ),
         ));
     };
     Ok(Some(RawRow {
@@ -536,7 +540,10 @@ fn check_gaps(
 
 fn gap_err(a: &RawRow, gap_s: i64, step_s: i64, factor: f64, fill: GapFill) -> SunError {
     let fix = match fill {
-        GapFill::Refuse => "give the missing records, or ask for a linear gap fill".to_string(),
+        GapFill::Refuse => "give the missing records (nothing is filled in), or keep only \
+                            the records on one side of the gap if every season's run lies \
+                            there"
+            .to_string(),
         GapFill::Linear { max_steps } | GapFill::ClearSkyIndex { max_steps } => {
             format!("give the missing records; the fill covers gaps up to {max_steps} steps")
         }

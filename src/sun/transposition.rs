@@ -72,24 +72,39 @@ pub struct Plane {
     cos_tilt: f64,
 }
 
+/// Checks an angle given in radians against a range in degrees; the comparison and the
+/// message use degrees rounded to 1e-9 so that a value the user typed (200) is shown as
+/// typed, not as its radians or as 199.99999999999997.
+fn check_deg(
+    name: &'static str,
+    angle_rad: f64,
+    (lo_deg, hi_deg): (f64, f64),
+    expected: &'static str,
+    fix: &'static str,
+) -> Result<f64, SunError> {
+    let deg = (crate::units::rad_to_deg(angle_rad) * 1e9).round() / 1e9;
+    check_range(name, deg, lo_deg, hi_deg, expected, fix)?;
+    Ok(angle_rad)
+}
+
 impl Plane {
-    /// A checked plane: tilt from 0 to π (face-down allowed), any azimuth.
+    /// A checked plane: tilt from 0 to π (face-down allowed), azimuth from −2π to 2π
+    /// (wrapped into [0, 2π)), the range of the mission file's `panels.azimuth_deg`.
+    /// Errors name the values in degrees, as the user gave them.
     pub fn new(tilt_rad: f64, azimuth_rad: f64) -> Result<Plane, SunError> {
-        check_range(
+        check_deg(
             "tilt_deg",
             tilt_rad,
-            0.0,
-            std::f64::consts::PI,
-            "degrees from 0 (flat) to 180",
-            "give the panel tilt from horizontal in degrees",
+            (0.0, 180.0),
+            "degrees from 0 (flat) to 180 (facing down)",
+            "give the panel tilt from horizontal in degrees (--tilt-deg)",
         )?;
-        check_range(
+        check_deg(
             "panel_azimuth_deg",
             azimuth_rad,
-            -1e3,
-            1e3,
-            "a finite azimuth in degrees",
-            "give the azimuth the panel faces, clockwise from north",
+            (-360.0, 360.0),
+            "degrees clockwise from north, -360 to 360",
+            "give the azimuth the panel faces (--panel-azimuth-deg), e.g. 180 for south",
         )?;
         Ok(Plane::of(tilt_rad, azimuth_rad))
     }

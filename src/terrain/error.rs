@@ -50,8 +50,8 @@ pub enum TerrainError {
         width: u64,
         /// Declared rows.
         height: u64,
-        /// width × height.
-        cells: u64,
+        /// width × height (wide enough that no declared size overflows it).
+        cells: u128,
         /// The limit in force.
         limit: u64,
     },

@@ -156,6 +156,24 @@ impl GeoRef {
             (self.origin_y - y) / self.pixel_height,
         )
     }
+
+    /// The (col, row) of the cell holding a map point on a `width` × `height` grid, or None
+    /// outside. The extent is closed: a point on the outer edge (east or south, col or row
+    /// exactly `width` or `height`) lies in the last cell, as the extent the errors quote
+    /// promises; within 1e-9 of a cell of the edge counts as on it (rounding of map
+    /// coordinates).
+    pub fn cell_at(&self, x: f64, y: f64, width: usize, height: usize) -> Option<(usize, usize)> {
+        const EDGE: f64 = 1e-9;
+        let (px, py) = self.to_pixel(x, y);
+        let (w, h) = (width as f64, height as f64);
+        let inside = px >= -EDGE && py >= -EDGE && px <= w + EDGE && py <= h + EDGE;
+        if !inside || width == 0 || height == 0 {
+            return None;
+        }
+        let col = (px.max(0.0).floor() as usize).min(width - 1);
+        let row = (py.max(0.0).floor() as usize).min(height - 1);
+        Some((col, row))
+    }
 }
 
 /// Cell size on the ground, metres.
@@ -364,6 +382,27 @@ mod tests {
         let (x, y) = g.cell_centre(3, 4);
         assert_eq!((x, y), (107.0, 491.0));
         assert_eq!(g.to_pixel(x, y), (3.5, 4.5));
+    }
+
+    /// The extent is closed: every corner of a 4 × 3 grid of 2 m cells lies in a corner
+    /// cell; a point beyond an edge, or not a number, lies in none.
+    #[test]
+    fn cell_at_takes_the_closed_extent() {
+        let mut g = GeoRef::local(2.0);
+        g.origin_x = 100.0;
+        g.origin_y = 506.0;
+        let at = |x, y| g.cell_at(x, y, 4, 3);
+        assert_eq!(at(100.0, 506.0), Some((0, 0)));
+        assert_eq!(at(108.0, 506.0), Some((3, 0)));
+        assert_eq!(at(100.0, 500.0), Some((0, 2)));
+        assert_eq!(at(108.0, 500.0), Some((3, 2)));
+        assert_eq!(at(103.0, 503.0), Some((1, 1)));
+        assert_eq!(at(108.01, 503.0), None);
+        assert_eq!(at(99.99, 503.0), None);
+        assert_eq!(at(103.0, 499.99), None);
+        assert_eq!(at(103.0, 506.01), None);
+        assert_eq!(at(f64::NAN, 503.0), None);
+        assert_eq!(GeoRef::local(1.0).cell_at(0.0, 0.0, 0, 0), None);
     }
 
     /// WGS 84 degree lengths against the usual series for the length of a degree

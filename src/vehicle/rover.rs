@@ -675,7 +675,11 @@ fn problem(key: &str, detail: String, fix: String) -> Problem {
 fn range_problem(key: &str, v: f64, range: &str) -> Problem {
     problem(
         key,
-        format!("got {v}, expected a number in {range}"),
+        if v.is_finite() {
+            format!("got {v}, expected a number in {range}")
+        } else {
+            format!("got {v}, expected a finite number in {range}")
+        },
         format!("set `{key}` inside {range}, or leave it out for the documented default"),
     )
 }

@@ -8,6 +8,10 @@
 //! starts with `GEOGCS`/`GEOGCRS` is geographic, anything else projected; the EPSG code is
 //! the last `AUTHORITY["EPSG","…"]` (WKT 1) or `ID["EPSG",…]` (WKT 2) in the text, which
 //! is the top-level one. Without a .prj the CRS is unknown and taken as metres.
+//!
+//! Values are stored as f32; a value that is not finite as f32 (nan, inf, or beyond
+//! ±3.4e38, such as 1e39) is no-data, as in the GeoTIFF reader. The corner coordinates must
+//! be finite.
 
 use std::path::Path;
 
@@ -95,13 +99,28 @@ pub fn parse(
                 ))
             }
         };
+        let coordinate = |v: f64| -> Result<f64, TerrainError> {
+            if v.is_finite() {
+                Ok(v)
+            } else {
+                Err(TerrainError::malformed(
+                    path,
+                    FORMAT,
+                    format!(
+                        "line {}: {key} = {value} is not a finite map coordinate",
+                        i + 1
+                    ),
+                    "give the lower-left corner (or centre) in the grid's map units",
+                ))
+            }
+        };
         match key.to_ascii_lowercase().as_str() {
             "ncols" => h.ncols = Some(count(num)?),
             "nrows" => h.nrows = Some(count(num)?),
-            "xllcorner" => h.x = Some((num, false)),
-            "xllcenter" => h.x = Some((num, true)),
-            "yllcorner" => h.y = Some((num, false)),
-            "yllcenter" => h.y = Some((num, true)),
+            "xllcorner" => h.x = Some((coordinate(num)?, false)),
+            "xllcenter" => h.x = Some((coordinate(num)?, true)),
+            "yllcorner" => h.y = Some((coordinate(num)?, false)),
+            "yllcenter" => h.y = Some((coordinate(num)?, true)),
             "cellsize" => (h.dx, h.dy) = (Some(num), Some(num)),
             "dx" => h.dx = Some(num),
             "dy" => h.dy = Some(num),
@@ -124,18 +143,21 @@ pub fn parse(
             format!("cell size {dx} x {dy} must be positive"),
         ));
     }
-    let cells = ncols * nrows;
-    if cells > max_cells {
+    // In u128: two declared dimensions below 1e12 cannot overflow it (in u64, 2^32 x 2^32
+    // wrapped to 0 cells and slipped past the limit).
+    let wide_cells = u128::from(ncols) * u128::from(nrows);
+    if wide_cells > u128::from(max_cells) {
         return Err(TerrainError::TooLarge {
             path: path.to_path_buf(),
             width: ncols,
             height: nrows,
-            cells,
+            cells: wide_cells,
             limit: max_cells,
         });
     }
-    // Every value takes at least two bytes of text ("1 "), so a short file that declares
-    // many cells cannot make this reserve more than its own size.
+    let cells = wide_cells as u64; // At most max_cells.
+                                   // Every value takes at least two bytes of text ("1 "), so a short file that declares
+                                   // many cells cannot make this reserve more than its own size.
     let mut data = Vec::with_capacity((cells as usize).min(text.len() / 2 + 1));
     let mut last_line = 1;
     for (i, line) in lines {
@@ -151,8 +173,11 @@ pub fn parse(
                     format!("more than ncols x nrows = {cells} values"),
                 ));
             }
-            let nodata = h.nodata.is_some_and(|nd| v == nd) || !v.is_finite();
-            data.push(if nodata { f32::NAN } else { v as f32 });
+            // Finite as f32, not only as f64: 1e39 becomes inf in the grid's f32. A value
+            // that is not finite as f32 is no-data, as in the GeoTIFF reader.
+            let z = v as f32;
+            let nodata = h.nodata.is_some_and(|nd| v == nd) || !z.is_finite();
+            data.push(if nodata { f32::NAN } else { z });
         }
     }
     if (data.len() as u64) < cells {

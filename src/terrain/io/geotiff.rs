@@ -99,7 +99,7 @@ pub fn read_from<R: Read + Seek>(
             path: path.to_path_buf(),
             width: w as u64,
             height: h as u64,
-            cells,
+            cells: u128::from(cells),
             limit: max_cells,
         });
     }

@@ -88,9 +88,10 @@ fn num(v: f64) -> String {
 /// 1000 km (coarser than any global DEM). Outside that range the georeference is damaged.
 pub const CELL_SIZE_RANGE_M: (f64, f64) = (1e-4, 1e6);
 
-/// The checks every reader's grid passes before use: some data, a cell size in metres
-/// that real terrain can have, and a geographic extent inside ±90° latitude. Elevations
-/// are taken as they are (the readers' reference files hold full Int32 ranges). [`read_dem`] applies them; callers of a reader's own entry point
+/// The checks every reader's grid passes before use: some data, a geographic extent
+/// inside ±90° latitude, a cell size in metres that real terrain can have, and a finite
+/// extent. Elevations are taken as they are (the readers' reference files hold full Int32
+/// ranges). [`read_dem`] applies them; callers of a reader's own entry point
 /// (`geotiff::read_from`, `png::read_from`, `ascii::parse`) apply them with this.
 pub fn check_grid(path: &Path, dem: &Dem) -> Result<(), TerrainError> {
     if dem.nodata_count() == dem.len() {
@@ -105,9 +106,9 @@ pub fn check_grid(path: &Path, dem: &Dem) -> Result<(), TerrainError> {
         fix,
     };
     let g = &dem.georef;
+    let south = g.origin_y - dem.height() as f64 * g.pixel_height;
+    let east = g.origin_x + dem.width() as f64 * g.pixel_width;
     if g.crs.kind == CrsKind::Geographic {
-        let south = g.origin_y - dem.height() as f64 * g.pixel_height;
-        let east = g.origin_x + dem.width() as f64 * g.pixel_width;
         // Half a cell of slack: global grids often put cell centres on the poles.
         let (slack_y, slack_x) = (0.5 * g.pixel_height + 1e-9, 0.5 * g.pixel_width + 1e-9);
         let lat_ok = g.origin_y <= 90.0 + slack_y && south >= -90.0 - slack_y;
@@ -138,6 +139,21 @@ pub fn check_grid(path: &Path, dem: &Dem) -> Result<(), TerrainError> {
                 num(cell.dy_m)
             ),
             "check the cell size in the header or the georeference tags",
+        ));
+    }
+    if ![g.origin_x, g.origin_y, south, east]
+        .iter()
+        .all(|v| v.is_finite())
+    {
+        return Err(implausible(
+            format!(
+                "the grid's extent, x {} to {} and y {} to {}, is not finite map coordinates",
+                num(g.origin_x),
+                num(east),
+                num(south),
+                num(g.origin_y)
+            ),
+            "check the corner coordinates in the header or the georeference tags",
         ));
     }
     Ok(())

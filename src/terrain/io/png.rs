@@ -69,7 +69,7 @@ pub fn read_from<R: BufRead + Seek>(
             path: path.to_path_buf(),
             width: w,
             height: h,
-            cells: w * h,
+            cells: u128::from(w * h),
             limit: max_cells,
         });
     }
