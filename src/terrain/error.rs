@@ -39,9 +39,10 @@ pub enum TerrainError {
     },
     /// The header declares more cells than the configured limit.
     #[error(
-        "{path}: the raster is {width} x {height} = {cells} cells, more than the limit of \
+        "{path}: the raster is {width} x {height} = {} cells, more than the limit of \
          {limit} cells. Fix: crop or resample the raster, or raise the limit with --max-cells (in a \
-         mission file: max_cells under [terrain])"
+         mission file: max_cells under [terrain])",
+        u128::from(*.width) * u128::from(*.height)
     )]
     TooLarge {
         /// The file.
@@ -50,8 +51,6 @@ pub enum TerrainError {
         width: u64,
         /// Declared rows.
         height: u64,
-        /// width × height (wide enough that no declared size overflows it).
-        cells: u128,
         /// The limit in force.
         limit: u64,
     },

@@ -151,7 +151,6 @@ pub fn parse(
             path: path.to_path_buf(),
             width: ncols,
             height: nrows,
-            cells: wide_cells,
             limit: max_cells,
         });
     }
@@ -292,7 +291,8 @@ mod tests {
             matches!(
                 e,
                 TerrainError::TooLarge {
-                    cells: 10_000_000_000,
+                    width: 100_000,
+                    height: 100_000,
                     ..
                 }
             ),

@@ -69,7 +69,6 @@ pub fn read_from<R: BufRead + Seek>(
             path: path.to_path_buf(),
             width: w,
             height: h,
-            cells: u128::from(w * h),
             limit: max_cells,
         });
     }
