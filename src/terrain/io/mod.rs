@@ -90,8 +90,8 @@ pub const CELL_SIZE_RANGE_M: (f64, f64) = (1e-4, 1e6);
 
 /// The checks every reader's grid passes before use: some data, a geographic extent
 /// inside ±90° latitude, a cell size in metres that real terrain can have, and a finite
-/// extent. Elevations are taken as they are (the readers' reference files hold full Int32
-/// ranges). [`read_dem`] applies them; callers of a reader's own entry point
+/// extent, and no elevation beyond [`MARKER_ELEVATION_M`] (other elevations are taken as
+/// they are: the readers' reference files hold full Int32 ranges). [`read_dem`] applies them; callers of a reader's own entry point
 /// (`geotiff::read_from`, `png::read_from`, `ascii::parse`) apply them with this.
 pub fn check_grid(path: &Path, dem: &Dem) -> Result<(), TerrainError> {
     if dem.nodata_count() == dem.len() {
@@ -156,5 +156,77 @@ pub fn check_grid(path: &Path, dem: &Dem) -> Result<(), TerrainError> {
             "check the corner coordinates in the header or the georeference tags",
         ));
     }
+    let w = dem.width();
+    if let Some((i, z)) = dem
+        .data()
+        .iter()
+        .enumerate()
+        .find(|(_, z)| z.abs() > MARKER_ELEVATION_M)
+    {
+        let n = dem
+            .data()
+            .iter()
+            .filter(|z| z.abs() > MARKER_ELEVATION_M)
+            .count();
+        return Err(implausible(
+            format!(
+                "{n} cell(s) hold elevations beyond ±{} m (the first at column {}, row {}:                  {}), values that mark missing data rather than terrain",
+                num(f64::from(MARKER_ELEVATION_M)),
+                i % w,
+                i / w,
+                num(f64::from(*z))
+            ),
+            "declare the raster's no-data value (for example gdal_edit.py -a_nodata \
+             -3.4028234663852886e+38 FILE.tif) or fill those cells",
+        ));
+    }
     Ok(())
+}
+
+/// Elevations beyond ± this many metres are taken for missing-data markers (such as the
+/// largest Float32, ±3.4e38, written without a no-data tag) and refused: far past any
+/// real terrain and past every integer sample type's range (the readers' reference files
+/// hold full Int32 ranges, about ±2.1e9), so no real grid is refused.
+pub const MARKER_ELEVATION_M: f32 = 1e20;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::terrain::{GeoRef, Grid};
+
+    /// A grid holding the largest Float32 (a no-data marker without its tag) is refused
+    /// with the cell named; Int32-range elevations and NaN no-data pass.
+    #[test]
+    fn marker_elevations_are_refused_and_real_ranges_pass() {
+        let mut z = vec![100.0f32; 12];
+        z[7] = -f32::MAX;
+        let dem = Grid::from_vec(4, 3, z, GeoRef::local(1.0));
+        let e = check_grid(Path::new("m.tif"), &dem)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("m.tif") && e.contains("column 3, row 1") && e.contains("1 cell(s)"),
+            "{e}"
+        );
+        let ok = Grid::from_vec(
+            4,
+            3,
+            vec![
+                2.1e9,
+                -2.1e9,
+                f32::NAN,
+                0.0,
+                1.0,
+                2.0,
+                3.0,
+                4.0,
+                5.0,
+                6.0,
+                7.0,
+                8.0,
+            ],
+            GeoRef::local(1.0),
+        );
+        assert!(check_grid(Path::new("ok.tif"), &ok).is_ok());
+    }
 }
