@@ -535,3 +535,28 @@ fn polar_night_is_dark_and_midnight_sun_is_lit() {
         .iter()
         .all(|r| r.irradiance.ghi_w_m2 > 0.0));
 }
+
+/// Irradiance above 2000 W/m² (past the solar constant, 1361 W/m², Kopp and Lean 2011,
+/// with room for cloud enhancement) and air temperatures outside -100..70 °C are unit
+/// mistakes, refused with the line and column named; values inside pass.
+#[test]
+fn weather_values_beyond_nature_are_refused() {
+    let head = "time,ghi_w_m2,dni_w_m2,dhi_w_m2,temp_air_c\n";
+    let ok = format!(
+        "{head}2027-06-01T12:00:00Z,1050,900,120,31.5\n2027-06-01T13:00:00Z,990,850,110,33\n"
+    );
+    assert!(parse(&ok, WeatherCsvOptions::default()).is_ok());
+    let kw = format!(
+        "{head}2027-06-01T12:00:00Z,50000,900,120,20\n2027-06-01T13:00:00Z,990,850,110,20\n"
+    );
+    let e = parse(&kw, WeatherCsvOptions::default()).unwrap_err();
+    assert!(
+        e.contains("line 2") && e.contains("ghi_w_m2") && e.contains("2000"),
+        "{e}"
+    );
+    let kelvin = format!(
+        "{head}2027-06-01T12:00:00Z,1000,900,120,293.15\n2027-06-01T13:00:00Z,990,850,110,20\n"
+    );
+    let e = parse(&kelvin, WeatherCsvOptions::default()).unwrap_err();
+    assert!(e.contains("temp_air_c") && e.contains("Celsius"), "{e}");
+}

@@ -239,15 +239,19 @@ fn outputs_never_overwrite_inputs_and_bad_parameters_are_refused() {
     assert!(String::from_utf8_lossy(&out.stderr).contains("refusing to overwrite an input"));
     assert_eq!(std::fs::read(&dem).unwrap(), before);
 
-    let out = sunward()
-        .args(["terrain", "horizon", "--sectors", "0"])
-        .arg(&dem)
-        .arg("-o")
-        .arg(tmp(&dir, "h.tif"))
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("sectors"));
+    // 0, 1 and 100 000 sectors: refused by the range 4 to 360, not by a later error.
+    for n in ["0", "1", "100000"] {
+        let out = sunward()
+            .args(["terrain", "horizon", "--sectors", n])
+            .arg(&dem)
+            .arg("-o")
+            .arg(tmp(&dir, "h.tif"))
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(2));
+        let msg = String::from_utf8_lossy(&out.stderr);
+        assert!(msg.contains("sectors from 4 to 360"), "{msg}");
+    }
     let out = sunward()
         .args(["terrain", "slope"])
         .arg(&dem)

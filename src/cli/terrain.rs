@@ -64,12 +64,24 @@ pub struct HillshadeArgs {
     altitude_deg: f64,
 }
 
+/// `--sectors`: 4 to 360 (fewer cannot interpolate a horizon between directions; more
+/// than one a degree adds memory, 4 bytes per cell and sector, without detail).
+fn parse_sectors(s: &str) -> Result<usize, String> {
+    match s.parse::<usize>() {
+        Ok(n) if (4..=360).contains(&n) => Ok(n),
+        _ => Err(format!(
+            "{s} is not a whole number of sectors from 4 to 360 (default 32)"
+        )),
+    }
+}
+
 #[derive(Debug, Args)]
 pub struct HorizonArgs {
     #[command(flatten)]
     dem: DemArgs,
-    /// Number of azimuth sectors; band k holds azimuth k x 360/N degrees.
-    #[arg(long, value_name = "N", default_value_t = horizon::DEFAULT_SECTORS)]
+    /// Number of azimuth sectors, 4 to 360; band k holds azimuth k x 360/N degrees.
+    #[arg(long, value_name = "N", default_value_t = horizon::DEFAULT_SECTORS,
+          value_parser = parse_sectors)]
     sectors: usize,
     /// Output GeoTIFF, one Float32 band per sector, degrees.
     #[arg(short = 'o', long = "out", value_name = "OUT.tif")]

@@ -304,8 +304,41 @@ fn parse_value(
             "check the sensor's zero offset and units; irradiance cannot be negative",
         ));
     }
+    if irradiance && v > MAX_IRRADIANCE_W_M2 {
+        return Err(input_err(
+            line,
+            format!(
+                "column {col} ({name}): {v} W/m2 is above {MAX_IRRADIANCE_W_M2} W/m2, more \
+                 than sunlight at the ground can give"
+            ),
+            "check the units: the columns take W/m2 (not kW/m2 scaled up, nor Wh/m2 summed \
+             over a longer interval)",
+        ));
+    }
+    if !irradiance && !(AIR_TEMP_RANGE_C.0..=AIR_TEMP_RANGE_C.1).contains(&v) {
+        return Err(input_err(
+            line,
+            format!(
+                "column {col} ({name}): {v} °C is outside {} to {} °C",
+                AIR_TEMP_RANGE_C.0, AIR_TEMP_RANGE_C.1
+            ),
+            "check the units: the column takes degrees Celsius (not kelvin or Fahrenheit)",
+        ));
+    }
     Ok(Some(if irradiance { v.max(0.0) } else { v }))
 }
+
+/// Largest irradiance accepted in a weather file, W/m². The solar constant is about
+/// 1361 W/m² (Kopp and Lean, "A new, lower value of total solar irradiance", GRL 38,
+/// 2011); cloud edges can lift ground-level readings to roughly 1.4 times it for
+/// seconds (from memory), so 2000 W/m² leaves room for real records and refuses unit
+/// mistakes.
+pub const MAX_IRRADIANCE_W_M2: f64 = 2000.0;
+
+/// Air temperatures accepted in a weather file, °C: beyond the records measured at the
+/// ground (−89.2 °C at Vostok, 1983; 56.7 °C at Furnace Creek, 1913; from memory) with a
+/// margin.
+pub const AIR_TEMP_RANGE_C: (f64, f64) = (-100.0, 70.0);
 
 fn cell<'a>(cells: &[&'a str], i: usize) -> &'a str {
     cells.get(i).copied().unwrap_or("")
