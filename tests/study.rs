@@ -104,6 +104,11 @@ fn shards_merged_equal_the_whole_sweep_byte_for_byte() {
             "{f} differs between the whole sweep and the merged shards"
         );
     }
+    // The light caution names the mission's sky (monthly clearness), not the clear sky.
+    let meta: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(whole.join("sweep.json")).unwrap()).unwrap();
+    let light = meta["cautions"][1].as_str().unwrap();
+    assert!(light.contains("monthly clearness"), "{light}");
     let csv = std::fs::read_to_string(whole.join("sweep.csv")).unwrap();
     assert_eq!(csv.lines().count(), 1 + 16);
     assert!(csv.starts_with(

@@ -758,14 +758,7 @@ fn sky_model_words(model: sunward::sun::transposition::SkyModel) -> &'static str
 
 /// The cautions of a run: the light caution names the mission's source of sunlight.
 fn run_cautions(m: &Mission) -> [&'static str; 4] {
-    use sunward::report::json::{
-        cautions_with_light, LIGHT_CLEARNESS, LIGHT_CLEAR_SKY, LIGHT_MEASURED,
-    };
-    cautions_with_light(match m.weather.sky {
-        Sky::ClearSky(_) => LIGHT_CLEAR_SKY,
-        Sky::Clearness { .. } => LIGHT_CLEARNESS,
-        Sky::Csv { .. } => LIGHT_MEASURED,
-    })
+    sunward::report::json::cautions_for_sky(&m.weather.sky)
 }
 
 /// The terrain path as the mission file gives it (relative to the mission's folder), so

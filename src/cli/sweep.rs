@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 
 use sunward::report::atomic::write_atomic;
-use sunward::report::json::CAUTIONS;
+use sunward::report::json::{cautions_for_sky, CAUTIONS};
 use sunward::report::{heatmap, plot, sweep as csv};
 use sunward::study::size::{size, SizeError, What};
 use sunward::study::sweep::{shard_indices, Study};
@@ -153,6 +153,7 @@ fn meta(
     shard: Option<(usize, usize)>,
     rows: usize,
     feasible: usize,
+    cautions: serde_json::Value,
 ) -> String {
     let doc = serde_json::json!({
         "schema_version": 1,
@@ -165,7 +166,7 @@ fn meta(
         "shard": shard.map(|(k, n)| format!("{k}/{n}")),
         "cases_in_file": rows,
         "feasible_cases": feasible,
-        "cautions": CAUTIONS,
+        "cautions": cautions,
     });
     serde_json::to_string_pretty(&doc).expect("plain data serialises") + "\n"
 }
@@ -292,6 +293,7 @@ pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
         shard,
         cases.len(),
         feasible,
+        serde_json::json!(cautions_for_sky(&m.weather.sky)),
     );
     write(&a.out.join("sweep.json"), json.as_bytes())?;
     let mut outputs = vec!["sweep.csv".to_string(), "sweep.json".to_string()];
@@ -378,6 +380,10 @@ pub fn run_merge(a: MergeArgs) -> Result<(), Error> {
         None,
         total,
         feasible,
+        // The shards' own cautions (they name the mission's sky).
+        j.get("cautions")
+            .cloned()
+            .unwrap_or_else(|| serde_json::json!(CAUTIONS)),
     );
     write(&a.out.join("sweep.csv"), merged.as_bytes())?;
     write(&a.out.join("sweep.json"), json.as_bytes())?;
@@ -404,7 +410,11 @@ fn round_sig(v: f64) -> String {
 /// The `size --json` object when no size passes: the keys of a found size, with `value`
 /// null, the largest size tried as `failing_below` (it failed), and the message as `error`.
 /// None for the errors that are bad input rather than a verdict.
-fn no_size_json(e: &SizeError, what: What) -> Option<serde_json::Value> {
+fn no_size_json(
+    e: &SizeError,
+    what: What,
+    cautions: [&'static str; 4],
+) -> Option<serde_json::Value> {
     let (mission_value, failing_below, season, reason, simulations) = match e {
         SizeError::NoneUpTo {
             max,
@@ -440,7 +450,7 @@ fn no_size_json(e: &SizeError, what: What) -> Option<serde_json::Value> {
         "failing_season": season,
         "failing_reason": reason,
         "simulations": simulations,
-        "cautions": CAUTIONS,
+        "cautions": cautions,
         "error": e.to_string(),
     }))
 }
@@ -474,7 +484,7 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
                     "failing_season": s.at_failing.as_ref().map(|o| o.binding_season.clone()),
                     "failing_reason": s.at_failing.as_ref().map(|o| o.binding_reason.clone()),
                     "simulations": s.evaluations,
-                    "cautions": CAUTIONS,
+                    "cautions": cautions_for_sky(&m.weather.sky),
                     "error": null,
                 });
                 crate::say!(
@@ -513,7 +523,7 @@ pub fn run_size(a: SizeArgs) -> Result<(), Error> {
         }
         Err(e) => {
             // No size passes (exit 1, a verdict) or the input is bad (exit 2).
-            let Some(doc) = no_size_json(&e, what) else {
+            let Some(doc) = no_size_json(&e, what, cautions_for_sky(&m.weather.sky)) else {
                 return Err(Error::Usage(e.to_string()));
             };
             if a.json {

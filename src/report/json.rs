@@ -57,6 +57,16 @@ pub const LIGHT_MEASURED: &str = "Measured weather is one record of the past; ot
      differ, and dust, snow on panels and shading the terrain model misses all reduce the \
      energy.";
 
+/// The cautions of a mission's reports: the light caution names its source of sunlight.
+pub fn cautions_for_sky(sky: &crate::mission::resolve::Sky) -> [&'static str; 4] {
+    use crate::mission::resolve::Sky;
+    cautions_with_light(match sky {
+        Sky::ClearSky(_) => LIGHT_CLEAR_SKY,
+        Sky::Clearness { .. } => LIGHT_CLEARNESS,
+        Sky::Csv { .. } => LIGHT_MEASURED,
+    })
+}
+
 /// The cautions every report carries, with `light` (one of the `LIGHT_*` texts) second.
 pub fn cautions_with_light(light: &'static str) -> [&'static str; 4] {
     let mut c = CAUTIONS;
