@@ -126,6 +126,16 @@ impl PackParams {
         }
     }
 
+    /// The pack's size in words for reports: "460 Wh (8s6p)" for a pack sized by cells,
+    /// "1200 Wh" otherwise; None as for [`Self::rated_energy_wh`].
+    pub fn size_words(&self) -> Option<String> {
+        let wh = self.rated_energy_wh()?;
+        Some(match (self.cells_series, self.cells_parallel) {
+            (Some(ns), Some(np)) => format!("{wh:.0} Wh ({ns}s{np}p)"),
+            _ => format!("{wh} Wh"),
+        })
+    }
+
     /// The pack's nominal voltage, V, however it is sized (None as for
     /// [`Self::rated_energy_wh`]).
     pub fn rated_voltage_v(&self) -> Option<f64> {

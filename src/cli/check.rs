@@ -76,11 +76,12 @@ fn summary(path: &Path, m: &Mission, w: usize, h: usize) -> String {
         Sky::Csv { .. } => "a weather file",
     };
     let b = &m.battery;
-    let capacity = match (b.rated_energy_wh(), b.cells_series, b.cells_parallel) {
-        (Some(wh), Some(ns), Some(np)) => format!("{wh:.0} Wh ({ns}s{np}p)"),
-        (Some(wh), ..) if b.capacity_wh.is_none() => format!("the default {wh:.0} Wh"),
-        (Some(wh), ..) => format!("{wh} Wh"),
-        (None, ..) => "of an incomplete size".to_string(),
+    let capacity = match b.size_words() {
+        Some(w) if b.capacity_wh.is_none() && b.cells_series.is_none() => {
+            format!("the default {w}")
+        }
+        Some(w) => w,
+        None => "of an incomplete size".to_string(),
     };
     format!(
         "{}: OK. Site \"{}\" at {:.3}°, {:.3}° (UTC{}), terrain {} ({w} x {h} cells); route \

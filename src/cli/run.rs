@@ -275,28 +275,32 @@ pub fn run_mission(
         seed: DEFAULT_SEED,
     };
     let m = load_mission(&a.mission)?;
-    run_staged(&a, &m, staged)
+    run_staged(&a, &m, None, staged)
 }
 
 fn run_with(a: &RunArgs) -> Result<bool, Error> {
     let m = load_mission(&a.mission)?;
-    if a.monte_carlo.is_some() {
-        daily_laws(&a.mission, &m)?;
-    }
+    // Refused before the output folder is touched.
+    let laws = match a.monte_carlo {
+        Some(_) => Some(daily_laws(&a.mission, &m)?),
+        None => None,
+    };
     prepare_out(&a.out, &[&a.mission])?;
     let mut staged = Staging::new(&a.out)?;
-    let done = run_staged(a, &m, &mut staged)?;
+    let done = run_staged(a, &m, laws, &mut staged)?;
     done.commit(staged, is_run_output)?;
     done.print();
     Ok(done.feasible)
 }
 
-/// Plans, simulates and stages every output of the run (nothing in `a.out` changes).
-fn run_staged(a: &RunArgs, m: &Mission, staged: &mut Staging) -> Result<Finished, Error> {
-    let laws = match a.monte_carlo {
-        Some(_) => Some(daily_laws(&a.mission, m)?),
-        None => None,
-    };
+/// Plans, simulates and stages every output of the run (nothing in `a.out` changes);
+/// `laws` are the daily laws of `--monte-carlo` ([`daily_laws`]), None without it.
+fn run_staged(
+    a: &RunArgs,
+    m: &Mission,
+    laws: Option<DailyClearness>,
+    staged: &mut Staging,
+) -> Result<Finished, Error> {
     let inputs = mission_inputs(&a.mission, m);
     super::check_series_memory(&a.mission, m)?;
     let models = load_models(m)?;
@@ -711,18 +715,13 @@ fn page_context_without_route(m: &Mission) -> PageContext {
             ),
             a(
                 "battery",
-                match (m.battery.cells_series, m.battery.cells_parallel) {
-                    (Some(ns), Some(np)) => format!(
-                        "{:.0} Wh {} ({ns}s{np}p)",
-                        m.battery.rated_energy_wh().unwrap_or(f64::NAN),
-                        m.battery.chemistry.preset().name
-                    ),
-                    _ => format!(
-                        "{} Wh {}",
-                        m.battery.rated_energy_wh().unwrap_or(f64::NAN),
-                        m.battery.chemistry.preset().name
-                    ),
-                },
+                format!(
+                    "{} {}",
+                    m.battery
+                        .size_words()
+                        .unwrap_or_else(|| "NaN Wh".to_string()),
+                    m.battery.chemistry.preset().name
+                ),
                 "mission file; OCV tables from PyBaMM parameter sets",
             ),
             a(

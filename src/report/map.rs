@@ -348,15 +348,19 @@ pub fn route_map_svg(
 mod tests {
     use super::*;
 
-    /// A straight route across a flat 20 x 9 grid and another along the bottom row:
-    /// the other is drawn in the first colour in both maps and named in the SVG title.
-    #[test]
-    fn other_routes_are_drawn_and_named() {
+    /// Routes along the runs of cell indices `a..b` given on a flat `w` × `h` grid of
+    /// `cell_m` cells, priced for the default rover.
+    fn flat_routes<const N: usize>(
+        w: usize,
+        h: usize,
+        cell_m: f64,
+        runs: [(usize, usize); N],
+    ) -> [Route; N] {
         use crate::plan::route::route_along;
         use crate::plan::{CellFlags, Connectivity, Objective, Planner, TiltLimits};
         use crate::terrain::{GeoRef, Grid};
         use crate::vehicle::{plan_model::RoverStepModel, Rover};
-        let dem = Grid::from_vec(20, 9, vec![0.0; 180], GeoRef::local(1.0));
+        let dem = Grid::from_vec(w, h, vec![0.0; w * h], GeoRef::local(cell_m));
         let flags = CellFlags::from_dem(&dem);
         let rover = Rover::default();
         let model = RoverStepModel::new(&rover);
@@ -368,8 +372,14 @@ mod tests {
             connectivity: Connectivity::Eight,
             objective: Objective::ENERGY,
         };
-        let main = route_along(&p, &(20..40).collect::<Vec<_>>(), 0);
-        let other = route_along(&p, &(140..160).collect::<Vec<_>>(), 0);
+        runs.map(|(a, b)| route_along(&p, &(a..b).collect::<Vec<_>>(), 0))
+    }
+
+    /// A straight route across a flat 20 x 9 grid and another along the bottom row:
+    /// the other is drawn in the first colour in both maps and named in the SVG title.
+    #[test]
+    fn other_routes_are_drawn_and_named() {
+        let [main, other] = flat_routes(20, 9, 1.0, [(20, 40), (140, 160)]);
         let px = route_map_rgb(&[128; 180], 20, 9, &main, &[&other], &[], 2);
         // Cell (10, 7) of the other route, at pixel (21, 15) with 2 pixels per cell, away
         // from the start and goal marks; a cell of neither route stays grey.
@@ -388,23 +398,7 @@ mod tests {
     fn framed_map_png_has_title_map_and_legend() {
         let (pw, ph) = (40usize, 30usize);
         let px: Vec<u8> = (0..pw * ph * 3).map(|i| (i % 200) as u8 + 30).collect();
-        use crate::plan::route::route_along;
-        use crate::plan::{CellFlags, Connectivity, Objective, Planner, TiltLimits};
-        use crate::terrain::{GeoRef, Grid};
-        use crate::vehicle::{plan_model::RoverStepModel, Rover};
-        let dem = Grid::from_vec(pw, ph, vec![0.0; pw * ph], GeoRef::local(2.0));
-        let flags = CellFlags::from_dem(&dem);
-        let rover = Rover::default();
-        let model = RoverStepModel::new(&rover);
-        let p = Planner {
-            dem: &dem,
-            flags: &flags,
-            model: &model,
-            limits: TiltLimits::default(),
-            connectivity: Connectivity::Eight,
-            objective: Objective::ENERGY,
-        };
-        let route = route_along(&p, &(45..60).collect::<Vec<_>>(), 0);
+        let [route] = flat_routes(pw, ph, 2.0, [(45, 60)]);
         let png = route_map_png(&px, pw, ph, &route, &["spring"], 2.0, 1, "Test ridge").unwrap();
         let mut reader = ::png::Decoder::new(std::io::Cursor::new(png))
             .read_info()
