@@ -19,6 +19,18 @@ fn temp_path(path: &Path) -> PathBuf {
     path.with_file_name(format!(".{name}.sunward-{}.tmp", std::process::id()))
 }
 
+/// Creates `path` with the bytes `fill` produces, buffered, then flushed and synced.
+fn write_synced(
+    path: &Path,
+    fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
+) -> std::io::Result<()> {
+    let file = File::create(path)?;
+    let mut w = BufWriter::with_capacity(1 << 20, file);
+    fill(&mut w)?;
+    let file = w.into_inner().map_err(|e| e.into_error())?;
+    file.sync_all()
+}
+
 /// Writes `path` atomically with the bytes `fill` produces.
 pub fn write_atomic(
     path: &Path,
@@ -29,14 +41,7 @@ pub fn write_atomic(
         path: path.to_path_buf(),
         source,
     };
-    let result = (|| {
-        let file = File::create(&tmp)?;
-        let mut w = BufWriter::with_capacity(1 << 20, file);
-        fill(&mut w)?;
-        let file = w.into_inner().map_err(|e| e.into_error())?;
-        file.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
+    let result = write_synced(&tmp, fill).and_then(|()| std::fs::rename(&tmp, path));
     if result.is_err() {
         let _ = std::fs::remove_file(&tmp);
     }
@@ -117,14 +122,7 @@ impl Staging {
             });
         }
         let staged = self.dir.join(name);
-        (|| {
-            let file = File::create(&staged)?;
-            let mut w = BufWriter::with_capacity(1 << 20, file);
-            fill(&mut w)?;
-            let file = w.into_inner().map_err(|e| e.into_error())?;
-            file.sync_all()
-        })()
-        .map_err(|source| Error::Output {
+        write_synced(&staged, fill).map_err(|source| Error::Output {
             path: target,
             source,
         })?;
