@@ -590,17 +590,20 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         }
     }
 
-    /// The bucket width of the searches' queues ([`super::queue::BucketQueue`]): 1/512
-    /// of a flat step's cost, so that the window of buckets spans 32 flat steps, more
-    /// than the keys queued at once spread (chosen by instruction counts on the 1024 ×
-    /// 1024 bench: narrower buckets keep the served bucket small, a window too short
-    /// sends entries to the overflow list).
+    /// The bucket width of the searches' queues ([`super::queue::BucketQueue`]): 1/128
+    /// of a flat step's cost, so that the window of buckets spans 128 flat steps, far
+    /// more than the keys queued at once spread (on the 4096 × 4096 bench less than 8:
+    /// nothing reached the overflow list). Chosen by wall time on that bench
+    /// (benches/results/2026-12-03-route-search.txt): against 1/2048, about 15 % less
+    /// in the median of alternating runs, as fewer buckets take the pushes of a round and
+    /// their ends stay in cache; a window of 4 flat steps sent entries to the overflow
+    /// list and took 6 times as long.
     pub(super) fn queue_width(&self) -> f64 {
         let cs = self.dem.cell_size();
         let flat = self
             .objective
             .lower_bound(self.model, cs.dx_m.min(cs.dy_m), 0.0);
-        flat / 2048.0
+        flat / 128.0
     }
 
     /// Reduced-cost A* from `start` to `goal` on one thread. `ws` is reused across calls.
