@@ -6,7 +6,10 @@
 #
 # The machine is a shared VM whose speed drifts by tens of percent from minute to minute,
 # so both sides run ROUNDS times (default 3), alternating, and the script prints the
-# fastest and the median run of each and the ratio of both.
+# fastest and the median run of each and the ratio of both. Each timed process starts
+# after a pause of PAUSE seconds (default 2), so that neither side starts while the
+# kernel is still taking back the other's memory (without it sunward's runs right after
+# the peer's were slower by about 8 %: benches/results/2026-12-03-route-search.txt).
 #
 # The peer is installed here, in a venv under target/, never as a project dependency.
 # Usage: bash benches/route_peer.sh [SIZE] [ROUNDS]      (defaults 4096, 3)
@@ -14,6 +17,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 SIZE=${1:-4096}
 ROUNDS=${2:-3}
+PAUSE=${PAUSE:-2}
 WORK=target/route-peer
 VENV=$WORK/venv
 mkdir -p "$WORK"
@@ -53,10 +57,12 @@ PEER_TS=()
 OURS_TS=()
 for r in $(seq "$ROUNDS"); do
     echo "== round $r of $ROUNDS: scikit-image route_through_array, $SIZE x $SIZE"
+    sleep "$PAUSE"
     PEER_T=$( { /usr/bin/time -f "%e" "$VENV/bin/python" "$WORK/peer.py" "$DEM" >&2; } 2>&1 | tail -1 )
     echo "peer wall time: $PEER_T s"
     PEER_TS+=("$PEER_T")
     echo "== round $r of $ROUNDS: sunward route, $SIZE x $SIZE, energy objective"
+    sleep "$PAUSE"
     OUT=$( { /usr/bin/time -f "%e %M" "$BIN" route --terrain "$DEM" --rover "$WORK/rover.toml" \
             --from "$FROM" --to "$TO" --objective energy --json > "$WORK/sunward.json"; } 2>&1 | tail -1 )
     echo "sunward wall time: ${OUT% *} s"

@@ -1,9 +1,11 @@
 //! A monotone priority queue for the planner's f64 keys: buckets of a fixed key width
-//! over a circular window, the bucket being served sorted ([`BucketQueue`]). It replaced
+//! over a circular window, the bucket being served split into finer ones, each sorted
+//! when served ([`BucketQueue`]). It replaced
 //! a radix heap (Ahuja, Mehlhorn, Orlin and Tarjan, JACM 37(2), 1990), in which an entry
-//! moved up to 16 times between buckets: here an entry moves once, into its bucket,
-//! which is sorted in place when its turn comes (instruction counts in
-//! benches/results/2026-12-02-route-search.txt).
+//! moved up to 16 times between buckets: here an entry moves twice, into its bucket and
+//! then into its fine bucket, which is sorted in place when its turn comes (instruction
+//! counts in benches/results/2026-12-02-route-search.txt, times in
+//! benches/results/2026-12-03-route-search.txt).
 
 /// An entry as one integer whose order is the pop order reversed: the complement of the
 /// key's bits (positive f64 keys order as their bits) above the complement of the value,
@@ -37,19 +39,29 @@ fn value_of(e: Entry) -> u32 {
 /// by value), so that
 /// entries leave in exact key order (not only bucket order): the bucket index
 /// ⌊(k − k₀)/Δ⌋ is monotone in the key, so bucket order is key order, and the sort
-/// orders within a bucket; an entry pushed into the bucket being served is inserted at
-/// its place. It needs monotone keys (no key below the last popped is pushed, up to
-/// rounding: such a key is raised to the last popped). A served bucket's storage is
-/// swapped with the emptied one of the bucket before it, so entries are moved once and
-/// allocations circulate instead of being made anew.
+/// orders within a bucket. A bucket whose turn comes is first spread over [`SUB`] fine
+/// buckets of width Δ/SUB (the fine index ⌊(k − k₀)·SUB/Δ⌋, of which the bucket index
+/// is the quotient by SUB, so fine order is key order too), and each fine bucket is
+/// sorted when its turn comes: pushes go to the few buckets of width Δ a round touches
+/// (their ends stay in cache), sorts stay small. An entry pushed into the fine bucket
+/// being served is inserted at its place. It needs monotone keys (no key below the last
+/// popped is pushed, up to rounding: such a key is raised to the last popped). Served
+/// storage circulates between the fine buckets and `near`; a bucket's storage is freed
+/// once spread.
 #[derive(Debug, Clone)]
 pub struct BucketQueue {
     width: f64,
-    inv: f64,
+    /// SUB / width: fine buckets per unit of key.
+    inv_fine: f64,
     origin: f64,
-    /// The bucket being served (its entries are in `near`, sorted in reverse pop order).
+    /// The bucket being served.
     cur: u64,
+    /// Its fine bucket being served (entries in `near`, sorted in reverse pop order) ...
+    sub_cur: usize,
     near: Vec<Entry>,
+    /// ... and its later fine buckets, unsorted, with a bit set for each non-empty one.
+    sub: [Vec<Entry>; SUB],
+    sub_occupied: u32,
     ring: Vec<Vec<Entry>>,
     occupied: [u64; RING / 64],
     /// Entries at or beyond bucket `cur + RING`, and the smallest bucket among them.
@@ -65,6 +77,9 @@ pub struct BucketQueue {
 /// kept for the window's 16384 buckets raised the bench's peak by 50 MB (to over 24
 /// bytes per cell) for no gain in time.
 const KEEP: usize = 0;
+
+/// Fine buckets a bucket is split into when its turn comes (a power of two, at most 32).
+const SUB: usize = 16;
 
 /// Buckets in the window (a power of two).
 pub const RING: usize = 16384;
@@ -85,10 +100,13 @@ impl BucketQueue {
         };
         BucketQueue {
             width,
-            inv: 1.0 / width,
+            inv_fine: SUB as f64 / width,
             origin: 0.0,
             cur: 0,
+            sub_cur: 0,
             near: Default::default(),
+            sub: Default::default(),
+            sub_occupied: 0,
             ring: (0..RING).map(|_| Vec::new()).collect(),
             occupied: [0; RING / 64],
             far: Vec::new(),
@@ -114,10 +132,15 @@ impl BucketQueue {
             }
         }
         self.near.clear();
+        for b in &mut self.sub {
+            b.clear();
+        }
+        self.sub_occupied = 0;
+        self.sub_cur = 0;
         self.far.clear();
         self.far_min = u64::MAX;
         self.width = width;
-        self.inv = 1.0 / width;
+        self.inv_fine = SUB as f64 / width;
         self.cur = 0;
         self.last = 0.0;
         self.len = 0;
@@ -143,21 +166,46 @@ impl BucketQueue {
             self.origin = k;
         }
         let bits = k.to_bits();
-        // Through i64 (one instruction on x86-64, where f64 → u64 takes a dozen); a
-        // key a hair below the origin truncates to bucket 0.
-        let idx = (((k - self.origin) * self.inv) as i64).max(0) as u64;
+        let f = self.fine(k);
+        let idx = f / SUB as u64;
         self.len += 1;
+        let e = entry(bits, value);
         if idx <= self.cur {
-            let e = entry(bits, value);
-            let at = self.near.partition_point(|&x| x < e);
-            self.near.insert(at, e);
+            self.place_current(f, e);
         } else if idx - self.cur < RING as u64 {
             let slot = idx as usize & (RING - 1);
-            self.ring[slot].push(entry(bits, value));
+            self.ring[slot].push(e);
             self.occupied[slot / 64] |= 1 << (slot % 64);
         } else {
-            self.far.push((idx, entry(bits, value)));
+            self.far.push((idx, e));
             self.far_min = self.far_min.min(idx);
+        }
+    }
+
+    /// The fine bucket of key `k`: ⌊(k − k₀)·SUB/Δ⌋, its bucket that over SUB. Through
+    /// i64 (one instruction on x86-64, where f64 → u64 takes a dozen); a key a hair below
+    /// the origin truncates to 0.
+    #[inline(always)]
+    fn fine(&self, k: f64) -> u64 {
+        (((k - self.origin) * self.inv_fine) as i64).max(0) as u64
+    }
+
+    /// Puts an entry of the bucket being served (fine bucket `f`) in its fine bucket:
+    /// inserted at its place in `near` when that is the fine bucket being served (or an
+    /// earlier one, by rounding), else appended to its own.
+    #[inline(always)]
+    fn place_current(&mut self, f: u64, e: Entry) {
+        let s = if f / (SUB as u64) < self.cur {
+            0
+        } else {
+            (f % SUB as u64) as usize
+        };
+        if s <= self.sub_cur {
+            let at = self.near.partition_point(|&x| x < e);
+            self.near.insert(at, e);
+        } else {
+            self.sub[s].push(e);
+            self.sub_occupied |= 1 << s;
         }
     }
 
@@ -177,8 +225,13 @@ impl BucketQueue {
         }
     }
 
-    /// Moves to the next non-empty bucket and sorts it into `near` (which is empty).
+    /// Moves to the next non-empty fine bucket (of the bucket being served, else of the
+    /// next non-empty bucket, whose entries are first spread over its fine buckets) and
+    /// sorts it into `near` (which is empty).
     fn advance(&mut self) {
+        if self.next_sub() {
+            return;
+        }
         let next = self.next_slot().or_else(|| {
             // The window is empty: move it to the overflow's first bucket.
             self.cur = self.far_min - 1;
@@ -191,10 +244,39 @@ impl BucketQueue {
         self.cur += d;
         let slot = self.cur as usize & (RING - 1);
         self.occupied[slot / 64] &= !(1 << (slot % 64));
-        std::mem::swap(&mut self.near, &mut self.ring[slot]);
-        self.ring[slot].shrink_to(KEEP);
+        let mut bucket = std::mem::take(&mut self.ring[slot]);
+        for &e in &bucket {
+            let f = self.fine(f64::from_bits(key_of(e)));
+            let s = (f % SUB as u64) as usize;
+            self.sub[s].push(e);
+            self.sub_occupied |= 1 << s;
+        }
+        bucket.clear();
+        bucket.shrink_to(KEEP);
+        self.ring[slot] = bucket;
         self.migrate();
+        // Fine bucket 0 may have received entries: start at it.
+        self.sub_cur = usize::MAX;
+        self.next_sub();
+    }
+
+    /// Serves the next non-empty fine bucket of the bucket being served (after
+    /// `sub_cur`; all of them when `sub_cur` is `usize::MAX`): false when there is none.
+    fn next_sub(&mut self) -> bool {
+        let later = if self.sub_cur == usize::MAX {
+            self.sub_occupied
+        } else {
+            self.sub_occupied & !((2u32 << self.sub_cur).wrapping_sub(1))
+        };
+        if later == 0 {
+            return false;
+        }
+        let s = later.trailing_zeros() as usize;
+        self.sub_occupied &= !(1 << s);
+        self.sub_cur = s;
+        std::mem::swap(&mut self.near, &mut self.sub[s]);
         self.near.sort_unstable();
+        true
     }
 
     /// The distance (1..RING) from `cur` to the next occupied bucket of the window.
@@ -229,8 +311,11 @@ impl BucketQueue {
             if idx < self.cur.saturating_add(RING as u64) {
                 self.far.swap_remove(i);
                 if idx <= self.cur {
-                    // Unsorted here: `advance`, the only caller with such entries, sorts.
-                    self.near.push(e);
+                    // Only `advance` has such entries, before it serves a fine bucket.
+                    let f = self.fine(f64::from_bits(key_of(e)));
+                    let s = (f % SUB as u64) as usize;
+                    self.sub[s].push(e);
+                    self.sub_occupied |= 1 << s;
                 } else {
                     let slot = idx as usize & (RING - 1);
                     self.ring[slot].push(e);
