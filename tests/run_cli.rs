@@ -211,7 +211,20 @@ fn an_unplannable_route_is_infeasible_for_tilt() {
             "{}",
             s["reason"]
         );
+        // Nothing was simulated: no lowest state of charge and no margin, rather than a
+        // full pack's 100 % and a positive margin beside the infeasible verdict.
+        assert!(s["min_soc"].is_null() && s["margin"].is_null(), "{s}");
     }
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("no season is feasible") && !stdout.contains("100.0 %"),
+        "{stdout}"
+    );
+    let html = std::fs::read_to_string(dir.path().join("report.html")).unwrap();
+    assert!(
+        !html.contains("100.0 %") && !html.contains("NaN"),
+        "report shows a full pack"
+    );
 }
 
 /// The bundled survey mission's text.

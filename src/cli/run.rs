@@ -504,7 +504,7 @@ fn sun_aware(
             } else {
                 "INFEASIBLE"
             };
-            format!("{v} (min SOC {:.1} %)", 100.0 * r.summary.min_soc)
+            format!("{v} (min SOC {})", r.summary.min_soc_text())
         };
         let side = |r: &SeasonResult| {
             serde_json::json!({
@@ -974,12 +974,12 @@ fn verdict_lines(m: &Mission, results: &[SeasonResult], out: &Path) -> Vec<Strin
     for r in results {
         let s = &r.summary;
         lines.push(format!(
-            "  {:<18} {}  {:<10} min SOC {:>5.1} %  margin {:+.2}  generated {:>7.0} Wh  used {:>7.0} Wh  {}",
+            "  {:<18} {}  {:<10} min SOC {:>7}  margin {:>5}  generated {:>7.0} Wh  used {:>7.0} Wh  {}",
             s.name,
             s.date,
             if s.feasible { "FEASIBLE" } else { "INFEASIBLE" },
-            100.0 * s.min_soc,
-            s.margin,
+            s.min_soc_text(),
+            s.margin_text(),
             s.energy_generated_wh,
             s.energy_consumed_wh.drive + s.energy_consumed_wh.hotel + s.energy_consumed_wh.payload + s.energy_consumed_wh.heater,
             s.reason

@@ -492,7 +492,8 @@ pub fn unplannable_cause(e: &PlanError) -> &'static str {
 
 /// Every season infeasible, stranded at the start (its place and the season's first
 /// instant: without a route the rover never leaves) by the limit that closes the way;
-/// the detail names the reachable cell nearest the leg's end.
+/// the detail names the reachable cell nearest the leg's end. Nothing is simulated, so
+/// `min_soc` and `margin` are NaN (null in summary.json).
 pub fn unplannable(m: &Mission, seasons: &[Season], e: &PlanError) -> Vec<SeasonResult> {
     let (x, y) = (m.route.start.point.x, m.route.start.point.y);
     let offset = i64::from(m.site.utc_offset.local_minus_utc());
@@ -518,7 +519,12 @@ pub fn unplannable(m: &Mission, seasons: &[Season], e: &PlanError) -> Vec<Season
                 in_hours_s: 0.0,
                 charging_hold_s: 0.0,
             };
-            let summary = summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);
+            let mut summary =
+                summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);
+            // The season never started: no lowest state of charge, no margin (null in
+            // summary.json, a dash in tables), rather than a full pack's.
+            summary.min_soc = f64::NAN;
+            summary.margin = f64::NAN;
             SeasonResult {
                 season: season.clone(),
                 run,

@@ -46,7 +46,8 @@ pub struct SeasonSummary {
     pub arrival_time: Option<DateTime<Utc>>,
     /// Where and why the rover ran out, or null.
     pub stranded: Option<Stranded>,
-    /// Lowest state of charge.
+    /// Lowest state of charge (NaN, null in JSON, when the route cannot be planned and
+    /// nothing was simulated).
     pub min_soc: f64,
     /// When it occurred.
     pub min_soc_time: DateTime<Utc>,
@@ -56,7 +57,7 @@ pub struct SeasonSummary {
     pub energy_generated_wh: f64,
     /// Energy used by category, Wh.
     pub energy_consumed_wh: Consumed,
-    /// Lowest SOC minus the reserve (see the module doc).
+    /// Lowest SOC minus the reserve (see the module doc); NaN (null) like `min_soc`.
     pub margin: f64,
     /// Solar output the pack could not accept, Wh.
     pub energy_curtailed_wh: f64,
@@ -75,6 +76,28 @@ fn consumed(l: &Ledger) -> Consumed {
         payload: l.payload_wh,
         heater: l.heater_wh,
         losses: l.losses_wh,
+    }
+}
+
+impl SeasonSummary {
+    /// The lowest state of charge as a percentage with one decimal, or "—" for a season
+    /// that was not simulated (its route cannot be planned).
+    pub fn min_soc_text(&self) -> String {
+        if self.min_soc.is_finite() {
+            format!("{:.1} %", 100.0 * self.min_soc)
+        } else {
+            "—".to_string()
+        }
+    }
+
+    /// The margin with a sign and two decimals, or "—" for a season that was not
+    /// simulated.
+    pub fn margin_text(&self) -> String {
+        if self.margin.is_finite() {
+            format!("{:+.2}", self.margin)
+        } else {
+            "—".to_string()
+        }
     }
 }
 

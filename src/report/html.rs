@@ -81,12 +81,12 @@ fn verdict_table(results: &[SeasonResult]) -> String {
             ("bad", "infeasible")
         };
         t.push_str(&format!(
-            "<tr><td class=l>{}</td><td>{}</td><td class={class}>{word}</td><td>{:.1} %</td>\
-             <td>{:+.2}</td><td>{:.0}</td><td>{:.0}</td><td class=l>{}</td></tr>",
+            "<tr><td class=l>{}</td><td>{}</td><td class={class}>{word}</td><td>{}</td>\
+             <td>{}</td><td>{:.0}</td><td>{:.0}</td><td class=l>{}</td></tr>",
             escape(&s.name),
             s.date,
-            100.0 * s.min_soc,
-            s.margin,
+            s.min_soc_text(),
+            s.margin_text(),
             s.energy_generated_wh,
             c.drive + c.hotel + c.payload + c.heater,
             escape(&s.reason)

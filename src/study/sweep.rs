@@ -80,9 +80,13 @@ pub struct Case {
 
 /// The reduction of a case's season verdicts (module doc).
 pub fn reduce(summaries: &[SeasonSummary]) -> CaseOutcome {
+    // A season that was not simulated (its route cannot be planned: NaN margin) binds
+    // before any simulated one.
     let mut worst: Option<&SeasonSummary> = None;
     for s in summaries {
-        if worst.is_none_or(|w| s.margin < w.margin) {
+        let worse =
+            |w: &SeasonSummary| (s.margin.is_nan() && !w.margin.is_nan()) || s.margin < w.margin;
+        if worst.is_none_or(worse) {
             worst = Some(s);
         }
     }
@@ -93,10 +97,13 @@ pub fn reduce(summaries: &[SeasonSummary]) -> CaseOutcome {
         feasible: summaries.iter().all(|s| s.feasible),
         seasons_feasible: summaries.iter().filter(|s| s.feasible).count(),
         seasons: summaries.len(),
+        // NaN when no season was simulated.
         min_soc: summaries
             .iter()
             .map(|s| s.min_soc)
-            .fold(f64::INFINITY, f64::min),
+            .filter(|v| !v.is_nan())
+            .reduce(f64::min)
+            .unwrap_or(f64::NAN),
         hours_below_reserve: summaries
             .iter()
             .map(|s| s.hours_below_reserve)
@@ -377,4 +384,59 @@ impl<'a> Study<'a> {
 /// so that shards of a sweep whose cost grows along a key still balance.
 pub fn shard_indices(total: usize, k: usize, n: usize) -> Vec<usize> {
     (k.saturating_sub(1)..total).step_by(n.max(1)).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mission::verdict::Consumed;
+
+    fn season(name: &str, min_soc: f64, margin: f64) -> SeasonSummary {
+        let at = chrono::DateTime::from_timestamp(0, 0).unwrap();
+        SeasonSummary {
+            name: name.into(),
+            date: at.date_naive(),
+            feasible: margin > 0.0,
+            arrival_time: None,
+            stranded: None,
+            min_soc,
+            min_soc_time: at,
+            hours_below_reserve: 0.0,
+            energy_generated_wh: 0.0,
+            energy_consumed_wh: Consumed {
+                drive: 0.0,
+                hotel: 0.0,
+                payload: 0.0,
+                heater: 0.0,
+                losses: 0.0,
+            },
+            margin,
+            energy_curtailed_wh: 0.0,
+            distance_m: 0.0,
+            storage_breach_time: None,
+            reason: format!("{name} reason"),
+        }
+    }
+
+    /// The smallest margin binds; a season that was not simulated (NaN margin, its
+    /// route cannot be planned) binds before any simulated one, and with no simulated
+    /// season the case has no lowest state of charge (NaN, not +∞ or a full pack).
+    #[test]
+    fn reduce_binds_the_smallest_margin_and_an_unsimulated_season_first() {
+        let o = reduce(&[season("a", 0.6, 0.4), season("b", 0.3, 0.1)]);
+        assert_eq!(
+            (o.binding_season.as_str(), o.margin, o.min_soc),
+            ("b", 0.1, 0.3)
+        );
+        assert!(o.feasible);
+        let o = reduce(&[season("a", 0.6, 0.4), season("n", f64::NAN, f64::NAN)]);
+        assert_eq!((o.binding_season.as_str(), o.min_soc), ("n", 0.6));
+        assert!(o.margin.is_nan() && !o.feasible);
+        let o = reduce(&[
+            season("n", f64::NAN, f64::NAN),
+            season("m", f64::NAN, f64::NAN),
+        ]);
+        assert!(o.min_soc.is_nan() && o.margin.is_nan() && !o.feasible);
+        assert_eq!(o.binding_season, "n");
+    }
 }
