@@ -76,8 +76,12 @@ use crate::plan::cost::{Blocked, StepModel};
 use crate::plan::queue::BucketQueue;
 
 /// Cells per side a round settles at most, about (a round is twice as many work units,
-/// module doc; about 10 ms of work); 1/64 of the grid when that is less (at least 8).
-pub const ROUND_CELLS: u64 = 1 << 15;
+/// module doc; about 2-3 ms of work); 1/64 of the grid when that is less (at least 8).
+/// Smaller rounds let the sides wait less for each other at the barrier (the slower
+/// side of a round sets its pace) and run less past the stopping point; larger ones pay
+/// fewer barriers: on the 4096 × 4096 bench 2^13 took about 4 % less wall time than
+/// 2^15 and 2^12 (benches/results/2026-12-03-route-search.txt).
+pub const ROUND_CELLS: u64 = 1 << 13;
 
 /// Grids with at least this many cells are searched both ways at once by
 /// [`Planner::search`] (below it, thread start and the second array cost more than they
