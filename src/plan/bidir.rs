@@ -173,7 +173,14 @@ struct Side<'h> {
     /// Work units done: cells settled plus steps priced.
     work: u64,
     exhausted: bool,
+    /// One flag per run of [`PAGE_CELLS`] cells (row-major): set once this side labels
+    /// a cell there. The meeting check skips the other side's cells in runs this side
+    /// never reached, without reading its cost word (a cache miss far from its front).
+    labelled: Vec<bool>,
 }
+
+/// Cells per flag of [`Side::labelled`]: the cost words of one 4 KiB page.
+const PAGE_SHIFT: u32 = 9;
 
 impl Side<'_> {
     /// The smallest queued key (+∞ when the queue is empty).
@@ -313,6 +320,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
             let gn = gu + c;
             if gn < g_next {
                 st(g, next, gn);
+                side.labelled[next >> PAGE_SHIFT] = true;
                 let pot = self.potential_at(z_next, col, row);
                 side.heap
                     .push(if REV { gn - pot } else { gn + pot }, next as u32);
@@ -322,9 +330,12 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
 
     /// The best (sum, cell) over the other side's settled cells `theirs` that this
     /// side (`own`) has labelled.
-    fn check(&self, own: &[u64], theirs: &[(u32, f64)]) -> (f64, u32) {
+    fn check(&self, own: &[u64], labelled: &[bool], theirs: &[(u32, f64)]) -> (f64, u32) {
         let mut best = (f64::INFINITY, u32::MAX);
         for &(x, other) in theirs {
+            if !labelled[x as usize >> PAGE_SHIFT] {
+                continue;
+            }
             let a = ld(own, x as usize);
             if a.is_finite() {
                 let s = (a.abs() + other, x);
@@ -355,7 +366,7 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
         let mut theirs: Vec<(u32, f64)> = Vec::new();
         let mut tops_before = 0.0;
         for round in 0usize.. {
-            let best = self.check(g, &theirs);
+            let best = self.check(g, &side.labelled, &theirs);
             self.advance::<REV>(g, side);
             {
                 let mut b = board.lock().unwrap_or_else(|e| e.into_inner());
@@ -447,9 +458,11 @@ impl<M: StepModel + ?Sized> Ctx<'_, '_, M> {
 /// The start keys are p(s) = h_t(s)/2 and −p(t) = h_s(t)/2, never negative (h_s(s) and
 /// h_t(t) are 0); the clamp only turns −0 into 0. A potential with a negative start key
 /// would break the queue's order here, since later keys are clamped to the last served.
-fn side(heap: &mut BucketQueue, key: f64, cell: usize) -> Side<'_> {
+fn side(heap: &mut BucketQueue, key: f64, cell: usize, cells: usize) -> Side<'_> {
     debug_assert!(key >= 0.0, "a start key below 0: {key}");
     heap.push(key.max(0.0), cell as u32);
+    let mut labelled = vec![false; (cells >> PAGE_SHIFT) + 1];
+    labelled[cell >> PAGE_SHIFT] = true;
     Side {
         heap,
         pending: None,
@@ -457,6 +470,7 @@ fn side(heap: &mut BucketQueue, key: f64, cell: usize) -> Side<'_> {
         expanded: 0,
         exhausted: false,
         work: 0,
+        labelled,
     }
 }
 
@@ -528,8 +542,8 @@ impl<M: StepModel + ?Sized> Planner<'_, M> {
         hb.reset(width);
         let (sc, sr) = ((start % w) as i64, (start / w) as i64);
         let (gc, gr) = ((goal % w) as i64, (goal / w) as i64);
-        let mut fwd = side(hf, ctx.potential(start, sc, sr), start);
-        let mut bwd = side(hb, -ctx.potential(goal, gc, gr), goal);
+        let mut fwd = side(hf, ctx.potential(start, sc, sr), start, n);
+        let mut bwd = side(hb, -ctx.potential(goal, gc, gr), goal, n);
         let barrier = Rendezvous::default();
         let board = Board::default();
         let [gf, gb] = &mut bi.g;
