@@ -39,7 +39,7 @@ fn value_of(e: Entry) -> u32 {
 /// by value), so that
 /// entries leave in exact key order (not only bucket order): the bucket index
 /// ⌊(k − k₀)/Δ⌋ is monotone in the key, so bucket order is key order, and the sort
-/// orders within a bucket. A bucket whose turn comes is first spread over [`SUB`] fine
+/// orders within a bucket. A bucket whose turn comes is first spread over `SUB` (16) fine
 /// buckets of width Δ/SUB (the fine index ⌊(k − k₀)·SUB/Δ⌋, of which the bucket index
 /// is the quotient by SUB, so fine order is key order too), and each fine bucket is
 /// sorted when its turn comes: pushes go to the few buckets of width Δ a round touches
