@@ -173,7 +173,7 @@ struct Side<'h> {
     /// Work units done: cells settled plus steps priced.
     work: u64,
     exhausted: bool,
-    /// One flag per run of [`PAGE_CELLS`] cells (row-major): set once this side labels
+    /// One flag per run of 2^[`PAGE_SHIFT`] cells (row-major): set once this side labels
     /// a cell there. The meeting check skips the other side's cells in runs this side
     /// never reached, without reading its cost word (a cache miss far from its front).
     labelled: Vec<bool>,

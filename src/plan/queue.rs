@@ -50,8 +50,7 @@ fn value_of(e: Entry) -> u32 {
 /// once spread.
 #[derive(Debug, Clone)]
 pub struct BucketQueue {
-    width: f64,
-    /// SUB / width: fine buckets per unit of key.
+    /// SUB / the bucket width: fine buckets per unit of key.
     inv_fine: f64,
     origin: f64,
     /// The bucket being served.
@@ -81,6 +80,16 @@ const KEEP: usize = 0;
 /// Fine buckets a bucket is split into when its turn comes (a power of two, at most 32).
 const SUB: usize = 16;
 
+/// SUB / `width`, for a bucket width that is positive and finite (any other gives 1).
+fn inv_fine(width: f64) -> f64 {
+    let width = if width > 0.0 && width.is_finite() {
+        width
+    } else {
+        1.0
+    };
+    SUB as f64 / width
+}
+
 /// Buckets in the window (a power of two).
 pub const RING: usize = 16384;
 
@@ -93,14 +102,8 @@ impl Default for BucketQueue {
 impl BucketQueue {
     /// An empty queue with buckets `width` wide (> 0, finite).
     pub fn new(width: f64) -> BucketQueue {
-        let width = if width > 0.0 && width.is_finite() {
-            width
-        } else {
-            1.0
-        };
         BucketQueue {
-            width,
-            inv_fine: SUB as f64 / width,
+            inv_fine: inv_fine(width),
             origin: 0.0,
             cur: 0,
             sub_cur: 0,
@@ -119,11 +122,6 @@ impl BucketQueue {
 
     /// Empties the queue and sets a new bucket width, keeping the allocations.
     pub fn reset(&mut self, width: f64) {
-        let width = if width > 0.0 && width.is_finite() {
-            width
-        } else {
-            1.0
-        };
         for (w, word) in self.occupied.iter_mut().enumerate() {
             while *word != 0 {
                 let b = word.trailing_zeros() as usize;
@@ -139,8 +137,7 @@ impl BucketQueue {
         self.sub_cur = 0;
         self.far.clear();
         self.far_min = u64::MAX;
-        self.width = width;
-        self.inv_fine = SUB as f64 / width;
+        self.inv_fine = inv_fine(width);
         self.cur = 0;
         self.last = 0.0;
         self.len = 0;
@@ -246,10 +243,7 @@ impl BucketQueue {
         self.occupied[slot / 64] &= !(1 << (slot % 64));
         let mut bucket = std::mem::take(&mut self.ring[slot]);
         for &e in &bucket {
-            let f = self.fine(f64::from_bits(key_of(e)));
-            let s = (f % SUB as u64) as usize;
-            self.sub[s].push(e);
-            self.sub_occupied |= 1 << s;
+            self.spread(e);
         }
         bucket.clear();
         bucket.shrink_to(KEEP);
@@ -258,6 +252,14 @@ impl BucketQueue {
         // Fine bucket 0 may have received entries: start at it.
         self.sub_cur = usize::MAX;
         self.next_sub();
+    }
+
+    /// Appends an entry of the bucket about to be served to its fine bucket (before any
+    /// fine bucket of it is served).
+    fn spread(&mut self, e: Entry) {
+        let s = (self.fine(f64::from_bits(key_of(e))) % SUB as u64) as usize;
+        self.sub[s].push(e);
+        self.sub_occupied |= 1 << s;
     }
 
     /// Serves the next non-empty fine bucket of the bucket being served (after
@@ -312,10 +314,7 @@ impl BucketQueue {
                 self.far.swap_remove(i);
                 if idx <= self.cur {
                     // Only `advance` has such entries, before it serves a fine bucket.
-                    let f = self.fine(f64::from_bits(key_of(e)));
-                    let s = (f % SUB as u64) as usize;
-                    self.sub[s].push(e);
-                    self.sub_occupied |= 1 << s;
+                    self.spread(e);
                 } else {
                     let slot = idx as usize & (RING - 1);
                     self.ring[slot].push(e);
