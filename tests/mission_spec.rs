@@ -50,6 +50,17 @@ fn problems(text: &str) -> Vec<String> {
 }
 
 /// The one problem of `text` is exactly `expected`.
+/// `sunward check FILE`: exit code 2 asserted, its standard error returned.
+fn check_refuses(file: &Path) -> String {
+    let out = Command::cargo_bin("sunward")
+        .unwrap()
+        .arg("check")
+        .arg(file)
+        .assert()
+        .code(2);
+    String::from_utf8(out.get_output().stderr.clone()).unwrap()
+}
+
 fn check_one(text: &str, expected: &str) {
     let got = problems(text);
     assert_eq!(got, vec![expected.to_string()], "for mission text:\n{text}");
@@ -485,13 +496,7 @@ fn check_command_exits_2_and_lists_every_problem() {
         .replace("lat_deg = 45.0", "lat_deg = 95.0")
         .replace("[rover]", "[rover]\nmass_kgs = 50.0");
     std::fs::write(&file, text).unwrap();
-    let out = Command::cargo_bin("sunward")
-        .unwrap()
-        .arg("check")
-        .arg(&file)
-        .assert()
-        .code(2);
-    let stderr = String::from_utf8(out.get_output().stderr.clone()).unwrap();
+    let stderr = check_refuses(&file);
     let f = file.display().to_string();
     assert!(
         stderr.contains(&format!("{f}:2:11: site.lat_deg: got 95")),
@@ -695,13 +700,7 @@ fn a_mission_file_in_another_encoding_is_named_with_the_fix() {
     let dir = tempfile::tempdir().unwrap();
     let file = dir.path().join("latin1.toml");
     std::fs::write(&file, b"[site]\nname = \"caf\xe9\"\n").unwrap();
-    let out = Command::cargo_bin("sunward")
-        .unwrap()
-        .arg("check")
-        .arg(&file)
-        .assert()
-        .code(2);
-    let stderr = String::from_utf8(out.get_output().stderr.clone()).unwrap();
+    let stderr = check_refuses(&file);
     assert!(
         stderr.contains(&file.display().to_string()) && stderr.contains("save the file as UTF-8"),
         "{stderr}"
