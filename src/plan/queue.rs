@@ -65,7 +65,12 @@ pub struct BucketQueue {
     ring: Vec<Vec<Entry>>,
     occupied: [u64; RING / 64],
     /// Spare bucket storage (empty, with capacity), at most as many as buckets were
-    /// occupied at once.
+    /// occupied at once. The window's buckets keep none when served: with buckets of
+    /// 1/128 flat step they hold hundreds of entries, and storage kept by each of the
+    /// window's 16384 buckets raised the bench's peak by 50 MB (to over 24 bytes per
+    /// cell); the pool holds storage for the buckets occupied at once only (on the bench
+    /// about a thousand: the queued keys spread less than 8 flat steps), and took the
+    /// allocator's 4 % of the instructions away (benches/results).
     pool: Vec<Vec<Entry>>,
     /// Entries at or beyond bucket `cur + RING`, and the smallest bucket among them.
     far: Vec<(u64, Entry)>,
@@ -74,13 +79,6 @@ pub struct BucketQueue {
     len: usize,
     started: bool,
 }
-
-/// Storage kept by the window's buckets when served: none (it goes to the pool). With
-/// buckets of 1/128 flat step the served buckets hold hundreds of entries, and storage
-/// kept by each of the window's 16384 buckets raised the bench's peak by 50 MB (to over
-/// 24 bytes per cell); the pool holds storage only for the buckets occupied at once (on
-/// the bench about a thousand: the queued keys spread less than 8 flat steps), and took
-/// the allocator's 4 % of the instructions away (benches/results).
 
 /// Fine buckets a bucket is split into when its turn comes (a power of two, at most 32).
 const SUB: usize = 16;
