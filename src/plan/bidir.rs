@@ -92,6 +92,8 @@ pub const MIN_CELLS: usize = 1 << 20;
 #[derive(Debug, Default)]
 pub struct BiArrays {
     g: [Vec<u64>; 2],
+    /// One queue per side, each written by its own thread: [`BucketQueue`] is aligned
+    /// so that the two never share a cache line.
     heap: [BucketQueue; 2],
 }
 

@@ -49,7 +49,15 @@ fn value_of(e: Entry) -> u32 {
 /// storage circulates between the fine buckets and `near`; a bucket's storage, once
 /// spread, goes to a pool of spare storage that the next bucket to receive its first
 /// entry takes from, so storage circulates instead of being allocated and grown again.
+///
+/// Aligned to 128 bytes (two cache lines, the span the hardware's adjacent-line
+/// prefetch fetches together) so that two queues side by side, as the two threads of
+/// [`super::bidir`] keep them, never share a line: when they did, the counters each
+/// thread writes on every push and pop made the line travel between the cores, and the
+/// 4096 × 4096 bench took 1.57 s instead of 1.16 s (median wall time, user time 2.69
+/// against 1.87 s; benches/results/2026-12-04-route-search.txt).
 #[derive(Debug, Clone)]
+#[repr(align(128))]
 pub struct BucketQueue {
     /// SUB / the bucket width: fine buckets per unit of key.
     inv_fine: f64,
