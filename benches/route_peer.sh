@@ -75,7 +75,9 @@ d = json.load(open(sys.argv[1]))
 rss_kb, n = float(sys.argv[2]), int(sys.argv[3])
 peer = [float(x) for x in sys.argv[4].split()]
 ours = [float(x) for x in sys.argv[5].split()]
-print(f"sunward: {len(d['cells'])} cells, {d['energy_wh']:.1f} Wh, {d['expanded_nodes']} expanded")
+print(f"sunward: {len(d['cells'])} cells, {d['energy_wh']:.1f} Wh, {d['expanded_nodes']} expanded, "
+      f"{statistics.median(ours) * 1e9 / d['expanded_nodes']:.0f} ns per expanded node "
+      f"(median whole-process wall time over both threads' expansions)")
 print(f"peer    runs: {peer}  fastest {min(peer):.2f} s, median {statistics.median(peer):.2f} s")
 print(f"sunward runs: {ours}  fastest {min(ours):.2f} s, median {statistics.median(ours):.2f} s")
 print(f"ratio peer/sunward: fastest {min(peer) / min(ours):.2f}x, median "
