@@ -715,9 +715,38 @@ fn mission_files_with_wrong_types_and_impossible_values_are_refused() {
         (
             "goal_m = [45.0, 15.0]",
             "goal_m = [45.0, 15.0]\nwaypoints_m = [[40.0, 30.0], [1.0, 2.0, 3.0]]",
+            "m.toml:9:30: route.waypoints_m[1]: expected a point [x, y] of two numbers, got \
+             an array of 3 values. Fix: write waypoint 2 as [x, y] in the terrain's map \
+             coordinates, metres, e.g. `waypoints_m = [[100.0, 250.0], [400.0, 300.0]]`",
+        ),
+        // A bad point is named by its index and column, and by the coordinate at fault.
+        (
+            "goal_m = [45.0, 15.0]",
+            "goal_m = [45.0, 15.0]\nwaypoints_m = [[40.0, 30.0], [\"a\", 2.0]]",
+            "m.toml:9:30: route.waypoints_m[1]: expected a point [x, y] of two numbers, got \
+             text as x. Fix: write waypoint 2 as [x, y] in the terrain's map coordinates, \
+             metres, e.g. `waypoints_m = [[100.0, 250.0], [400.0, 300.0]]`",
+        ),
+        (
+            "goal_m = [45.0, 15.0]",
+            "goal_m = [45.0, 15.0]\nwaypoints_m = [40.0, 30.0]",
+            "m.toml:9:15: route.waypoints_m: expected an array of points [[x, y], ...], got 2 \
+             numbers. Fix: give each point its own brackets, e.g. `waypoints_m = [[100.0, \
+             250.0]]` for one",
+        ),
+        (
+            "goal_m = [45.0, 15.0]",
+            "goal_m = [45.0, 15.0]\nwaypoints_m = 4",
             "m.toml:9:15: route.waypoints_m: expected an array of points [[x, y], ...], got an \
-             array of 2 values. Fix: write it as an array of points [[x, y], ...], e.g. \
+             integer. Fix: write it as an array of points [[x, y], ...], e.g. \
              `waypoints_m = [[100.0, 250.0], [400.0, 300.0]]`",
+        ),
+        (
+            "[31.0, 49.0]",
+            "[31.0, false]",
+            "m.toml:7:11: route.start_m: expected a point [x, y] of two numbers, got \
+             true/false as y. Fix: write it as a point [x, y] of two numbers, e.g. `start_m = \
+             [100.0, 250.0]`",
         ),
     ];
     for (from, to, want) in cases {

@@ -664,8 +664,24 @@ impl<'a, 'i> Reader<'a, 'i> {
 
     /// A map point `[x, y]` in metres.
     pub fn point(&mut self, key: &'static str, out: &mut Problems<'_>) -> Option<Val<[f64; 2]>> {
-        let v = self.typed::<XY>(key, "a point [x, y] of two numbers", "[100.0, 250.0]", out)?;
-        self.finite_point(key, Spanned::new(v.span(), v.into_inner().0), out)
+        let v = self.get(key)?;
+        match <XY as serde::Deserialize>::deserialize(ValueDeserializer::from(v.clone())) {
+            Ok(xy) => self.finite_point(key, Spanned::new(v.span(), xy.0), out),
+            Err(_) => {
+                out.add(
+                    &self.full(key),
+                    Some(v.span()),
+                    format!(
+                        "expected a point [x, y] of two numbers, got {}",
+                        point_error(v)
+                    ),
+                    format!(
+                        "write it as a point [x, y] of two numbers, e.g. `{key} = [100.0, 250.0]`"
+                    ),
+                );
+                None
+            }
+        }
     }
 
     fn finite_point(
@@ -853,19 +869,76 @@ fn read_connectivity(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Option<V
     None
 }
 
+/// `waypoints_m`: an array of points, each checked on its own, so that a bad point is
+/// reported as `waypoints_m[i]` at its own place in the file.
 fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f64; 2]>> {
-    let v = t.typed::<Vec<Spanned<XY>>>(
-        "waypoints_m",
-        "an array of points [[x, y], ...]",
-        "[[100.0, 250.0], [400.0, 300.0]]",
-        out,
-    );
-    let Some(v) = v else { return Vec::new() };
-    v.into_inner()
-        .into_iter()
-        .map(|p| Spanned::new(p.span(), p.into_inner().0))
-        .filter_map(|p| t.finite_point("waypoints_m", p, out))
-        .collect()
+    const EXPECTED: &str = "an array of points [[x, y], ...]";
+    const EXAMPLE: &str = "[[100.0, 250.0], [400.0, 300.0]]";
+    let Some(v) = t.get("waypoints_m") else {
+        return Vec::new();
+    };
+    let DeValue::Array(points) = v.get_ref() else {
+        out.add(
+            &t.full("waypoints_m"),
+            Some(v.span()),
+            format!("expected {EXPECTED}, got {}", type_name(v.get_ref())),
+            format!("write it as {EXPECTED}, e.g. `waypoints_m = {EXAMPLE}`"),
+        );
+        return Vec::new();
+    };
+    if !points.is_empty() && points.iter().all(is_number) {
+        // One point without the outer brackets: one problem, not one per number.
+        out.add(
+            &t.full("waypoints_m"),
+            Some(v.span()),
+            format!("expected {EXPECTED}, got {} numbers", points.len()),
+            "give each point its own brackets, e.g. `waypoints_m = [[100.0, 250.0]]` for one"
+                .to_string(),
+        );
+        return Vec::new();
+    }
+    let mut good = Vec::new();
+    for (i, p) in points.iter().enumerate() {
+        let key = format!("waypoints_m[{i}]");
+        match <XY as serde::Deserialize>::deserialize(ValueDeserializer::from(p.clone())) {
+            Ok(xy) => {
+                if let Some(v) = t.finite_point(&key, Spanned::new(p.span(), xy.0), out) {
+                    good.push(v);
+                }
+            }
+            Err(_) => out.add(
+                &t.full(&key),
+                Some(p.span()),
+                format!(
+                    "expected a point [x, y] of two numbers, got {}",
+                    point_error(p)
+                ),
+                format!(
+                    "write waypoint {} as [x, y] in the terrain's map coordinates, metres, \
+                     e.g. `waypoints_m = {EXAMPLE}`",
+                    i + 1
+                ),
+            ),
+        }
+    }
+    good
+}
+
+/// Whether `v` is a TOML integer or float.
+fn is_number(v: &TomlValue<'_>) -> bool {
+    matches!(v.get_ref(), DeValue::Integer(_) | DeValue::Float(_))
+}
+
+/// What is wrong with `p`, which is not a point of two numbers: its type, or for a pair,
+/// which coordinate is not a number.
+fn point_error(p: &TomlValue<'_>) -> std::borrow::Cow<'static, str> {
+    if let DeValue::Array(xy) = p.get_ref() {
+        if let (2, Some((i, v))) = (xy.len(), xy.iter().enumerate().find(|(_, v)| !is_number(v))) {
+            let axis = if i == 0 { "x" } else { "y" };
+            return format!("{} as {axis}", type_name(v.get_ref())).into();
+        }
+    }
+    type_name(p.get_ref())
 }
 
 /// A point `[x, y]` of exactly two numbers. serde reads `[f64; 2]` from the first two
