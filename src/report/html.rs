@@ -97,26 +97,30 @@ fn verdict_table(results: &[SeasonResult]) -> String {
 }
 
 fn budget_table(results: &[SeasonResult]) -> String {
+    // The columns of daily-budget.csv, in its order.
     let mut t = String::from(
-        "<table><tr><th class=l>season</th><th>local date</th><th>generated</th><th>drive</th>\
-         <th>hotel</th><th>payload</th><th>heater</th><th>losses</th><th>net</th>\
-         <th>SOC start</th><th>SOC min</th><th>SOC end</th></tr>",
+        "<table><tr><th class=l>season</th><th>local date</th><th>generated</th>\
+         <th>curtailed</th><th>drive</th><th>hotel</th><th>payload</th><th>heater</th>\
+         <th>losses</th><th>consumed</th><th>net</th><th>SOC start</th><th>SOC min</th>\
+         <th>SOC end</th></tr>",
     );
     for r in results {
         for d in &r.days {
             let l = &d.ledger;
             t.push_str(&format!(
                 "<tr><td class=l>{}</td><td>{}</td><td>{:.0}</td><td>{:.0}</td><td>{:.0}</td>\
-                 <td>{:.0}</td><td>{:.0}</td><td>{:.1}</td><td>{:.0}</td><td>{:.0} %</td>\
-                 <td>{:.0} %</td><td>{:.0} %</td></tr>",
+                 <td>{:.0}</td><td>{:.0}</td><td>{:.0}</td><td>{:.1}</td><td>{:.0}</td>\
+                 <td>{:.0}</td><td>{:.0} %</td><td>{:.0} %</td><td>{:.0} %</td></tr>",
                 escape(&r.season.name),
                 d.date,
                 l.generated_wh,
+                l.curtailed_wh,
                 l.drive_wh,
                 l.hotel_wh,
                 l.payload_wh,
                 l.heater_wh,
                 l.losses_wh,
+                l.consumed_wh(),
                 d.net_wh(),
                 100.0 * d.soc_start,
                 100.0 * d.soc_min,
@@ -124,7 +128,12 @@ fn budget_table(results: &[SeasonResult]) -> String {
             ));
         }
     }
-    t.push_str("</table><p>Energies in Wh per local day.</p>");
+    t.push_str(
+        "</table><p>Energies in Wh per local day. Curtailed: solar energy the full (or \
+         too cold) pack could not take; consumed: drive, hotel, payload and heater \
+         together; net: generated less curtailed, consumed and the pack's losses \
+         (daily-budget.csv has the same columns).</p>",
+    );
     t
 }
 
@@ -228,5 +237,25 @@ mod tests {
         for (i, o) in cases {
             assert_eq!(base64(i.as_bytes()), o);
         }
+    }
+
+    /// The report's budget table has daily-budget.csv's columns, in its order.
+    #[test]
+    fn the_budget_table_has_the_csv_columns() {
+        let html = budget_table(&[]);
+        let heads: Vec<String> = html
+            .split("<th")
+            .skip(1)
+            .map(|h| h[h.find('>').unwrap() + 1..h.find("</th>").unwrap()].replace(' ', "_"))
+            .collect();
+        let csv: Vec<String> = crate::report::csv::DAILY_HEADER
+            .split(',')
+            .map(|c| {
+                c.trim_end_matches("_wh")
+                    .replace("date_local", "local_date")
+            })
+            .map(|c| c.replace("soc", "SOC"))
+            .collect();
+        assert_eq!(heads, csv);
     }
 }
