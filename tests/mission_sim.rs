@@ -626,3 +626,102 @@ fn monthly_clearness_scales_generation() {
         "{half} vs {clear}"
     );
 }
+
+/// A rover that must wait for charge where its panels cannot give it: in polar night at
+/// 80° N with driving hours all day, it starts below `min_soc_to_drive`, parks for the
+/// whole day with its 25 W hotel load on, and the verdict says that waiting lost charge.
+/// Hand arithmetic: 24 h × 25 W = 600 Wh drawn, nothing generated, so the pack loses
+/// 600 Wh plus its own I²R and coulombic losses.
+#[test]
+fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
+    use sunward::mission::verdict::summarize;
+    let dem = flat(5);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (1.0, -1.0), (9.0, -9.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(80f64.to_radians(), 15f64.to_radians(), 0.0).unwrap();
+    let policy = Policy {
+        min_soc_to_drive: 0.6,
+        resume_soc: 0.7,
+        end: EndCondition::Arrival,
+        ..parked_day()
+    };
+    let run = simulate(
+        &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.5),
+        midnight("2031-12-21"),
+    )
+    .unwrap();
+    assert_eq!(run.ledger.generated_wh, 0.0);
+    assert_eq!(run.distance_m, 0.0);
+    assert!(
+        (run.charge_wait_s - 86_400.0).abs() < 1e-6,
+        "{}",
+        run.charge_wait_s
+    );
+    let lost = -run.charge_wait_stored_wh;
+    assert!(
+        (run.ledger.hotel_wh - 600.0).abs() < 1e-9,
+        "{}",
+        run.ledger.hotel_wh
+    );
+    assert!(
+        (lost - 600.0 - run.ledger.losses_wh).abs() < 1e-6,
+        "lost {lost} Wh, losses {} Wh",
+        run.ledger.losses_wh
+    );
+    let sum = summarize(
+        "winter",
+        NaiveDate::from_ymd_opt(2031, 12, 21).unwrap(),
+        &run,
+        0.2,
+        16.0,
+    );
+    assert!(!sum.feasible);
+    assert!(
+        sum.reason.contains(&format!(
+            "over the 24.0 h it waited for charge the pack lost {lost:.0} Wh net"
+        )) && sum.reason.starts_with("did not arrive by the deadline: 0 of "),
+        "{}",
+        sum.reason
+    );
+}
+
+/// The same wait in midsummer sun with a panel larger than the hotel load recharges the
+/// pack: the rover drives on, and no verdict speaks of a wait that lost charge.
+#[test]
+fn waiting_for_charge_in_the_sun_recharges() {
+    use sunward::mission::verdict::summarize;
+    let dem = flat(5);
+    let rover = Rover::default();
+    let route = route_on(&dem, &rover, (1.0, -1.0), (9.0, -9.0));
+    let s = stages(Vec::new());
+    let panel = ideal_panel(1.0);
+    let obs = Observer::new(80f64.to_radians(), 15f64.to_radians(), 0.0).unwrap();
+    let policy = Policy {
+        min_soc_to_drive: 0.6,
+        resume_soc: 0.7,
+        end: EndCondition::Arrival,
+        ..parked_day()
+    };
+    let run = simulate(
+        &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.5),
+        midnight("2031-06-21"),
+    )
+    .unwrap();
+    assert!(run.charge_wait_s > 0.0);
+    assert!(
+        run.charge_wait_stored_wh > 0.0,
+        "{}",
+        run.charge_wait_stored_wh
+    );
+    assert!(run.arrival.is_some());
+    let sum = summarize(
+        "summer",
+        NaiveDate::from_ymd_opt(2031, 6, 21).unwrap(),
+        &run,
+        0.2,
+        16.0,
+    );
+    assert!(!sum.reason.contains("lost"), "{}", sum.reason);
+}

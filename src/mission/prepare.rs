@@ -518,6 +518,8 @@ pub fn unplannable(m: &Mission, seasons: &[Season], e: &PlanError) -> Vec<Season
                 distance_m: 0.0,
                 in_hours_s: 0.0,
                 charging_hold_s: 0.0,
+                charge_wait_s: 0.0,
+                charge_wait_stored_wh: 0.0,
             };
             let mut summary =
                 summarize(&season.name, season.date, &run, m.battery.reserve_soc, 0.0);

@@ -341,6 +341,12 @@ pub struct Run {
     pub in_hours_s: f64,
     /// Seconds parked inside the driving hours waiting for charge.
     pub charging_hold_s: f64,
+    /// Seconds parked inside the driving hours because the state of charge fell below
+    /// `min_soc_to_drive` (until it reached `resume_soc`).
+    pub charge_wait_s: f64,
+    /// Net change of the pack's stored energy over those seconds, Wh: negative when the
+    /// parked rover's loads took more than its panels gave, so waiting did not recharge.
+    pub charge_wait_stored_wh: f64,
 }
 
 /// Where the rover is on the route: the index of the profile row it is heading to and the
@@ -481,6 +487,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
         distance_m: 0.0,
         in_hours_s: 0.0,
         charging_hold_s: 0.0,
+        charge_wait_s: 0.0,
+        charge_wait_stored_wh: 0.0,
     };
     let reserve = setup.pack.params().reserve_soc;
     let dt = setup.step_s;
@@ -555,6 +563,8 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
                 run.charging_hold_s += dt;
             }
         }
+        let waiting_for_charge =
+            in_hours && !arrived && charge_hold && activity == Activity::Parked;
         // Drive.
         let stop_row = setup.stops.get(next_stop).map_or(usize::MAX, |s| s.row);
         let stop_row = setup
@@ -657,6 +667,10 @@ pub fn simulate(setup: &SimSetup<'_>, start: DateTime<Utc>) -> Result<Run, SimEr
             )
             .map_err(|e| SimError::Stage(e.to_string()))?;
         pack_state = ps.state;
+        if waiting_for_charge {
+            run.charge_wait_s += dt;
+            run.charge_wait_stored_wh += ps.stored_delta_wh;
+        }
         let losses_wh = ps.loss_resistive_wh + ps.loss_coulombic_wh;
         last_loss_w = losses_wh * 3600.0 / dt;
         // A shortfall below a millionth of the demand is the pack's round-off (its

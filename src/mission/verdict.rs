@@ -101,6 +101,21 @@ impl SeasonSummary {
     }
 }
 
+/// The clause for a rover that waited for charge and lost charge while it waited (its
+/// parked loads took more than its panels gave), or nothing.
+fn waiting_lost(run: &Run) -> String {
+    if run.charge_wait_s <= 0.0 || run.charge_wait_stored_wh >= 0.0 {
+        return String::new();
+    }
+    format!(
+        "; over the {:.1} h it waited for charge the pack lost {:.0} Wh net: parked, its \
+         loads took more than the panels gave, so waiting could not recharge it (a lower \
+         hotel or heater load while parked, or more panel, would)",
+        run.charge_wait_s / 3600.0,
+        -run.charge_wait_stored_wh
+    )
+}
+
 /// The verdict of one run; `route_length_m` is the planned route's length.
 pub fn summarize(
     name: &str,
@@ -131,10 +146,11 @@ pub fn summarize(
         ),
         (None, None, _) => format!(
             "did not arrive by the deadline: {:.0} of {:.0} m driven; {:.1} h of the driving \
-             hours were spent parked, waiting for charge",
+             hours were spent parked, waiting for charge{}",
             run.distance_m,
             route_length_m,
-            run.charging_hold_s / 3600.0
+            run.charging_hold_s / 3600.0,
+            waiting_lost(run)
         ),
         (None, Some(_), Some(t)) => format!(
             "the battery box fell below its storage minimum at {}",
