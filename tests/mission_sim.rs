@@ -681,7 +681,9 @@ fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
     assert!(
         sum.reason.contains(&format!(
             "over the 24.0 h it waited for charge the pack lost {lost:.0} Wh net"
-        )) && sum.reason.starts_with("did not arrive by the deadline: 0 of "),
+        )) && sum
+            .reason
+            .starts_with("did not arrive by the deadline: 0 of "),
         "{}",
         sum.reason
     );

@@ -14,7 +14,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::FontStyle;
 
-use crate::report::plot::{draw_err, encode_png, register_fonts, PlotError, FAMILY};
+use crate::report::plot::{draw_err, encode_png, register_fonts, PlotError, Ticked, FAMILY};
 
 /// One cell of the map.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -119,12 +119,17 @@ pub fn render_svg(h: &Heatmap) -> Result<String, PlotError> {
     Ok(svg)
 }
 
-/// Every `k`-th label, so that at most about 12 show.
-fn thin(labels: &[String], v: f64) -> String {
-    let n = labels.len();
+/// Ticks at the centres of every `k`-th of `n` cells, so that at most about 12 show
+/// (never on the cell edges).
+fn cell_ticks(n: usize) -> Vec<f64> {
     let every = n.div_ceil(12).max(1);
+    (0..n).step_by(every).map(|i| i as f64).collect()
+}
+
+/// The label of the cell whose centre is at `v` (a tick of [`cell_ticks`]).
+fn thin(labels: &[String], v: f64) -> String {
     let i = v.round();
-    if (v - i).abs() > 1e-6 || i < 0.0 || i as usize >= n || !(i as usize).is_multiple_of(every) {
+    if (v - i).abs() > 1e-6 || i < 0.0 || i as usize >= labels.len() {
         return String::new();
     }
     labels[i as usize].clone()
@@ -144,7 +149,10 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, h: &Heatmap) -> Resul
         .margin((14.0 * base) as u32)
         .x_label_area_size((56.0 * base) as u32)
         .y_label_area_size((86.0 * base) as u32)
-        .build_cartesian_2d(-0.5..nx as f64 - 0.5, -0.5..ny as f64 - 0.5)
+        .build_cartesian_2d(
+            Ticked::new(-0.5, nx as f64 - 0.5, cell_ticks(nx)),
+            Ticked::new(-0.5, ny as f64 - 0.5, cell_ticks(ny)),
+        )
         .map_err(draw_err)?;
     let fx = |v: &f64| thin(&h.x_ticks, *v);
     let fy = |v: &f64| thin(&h.y_ticks, *v);
@@ -153,8 +161,6 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, h: &Heatmap) -> Resul
         .disable_mesh()
         .x_desc(h.x_label.as_str())
         .y_desc(h.y_label.as_str())
-        .x_labels(nx.min(200) * 2 + 1)
-        .y_labels(ny.min(200) * 2 + 1)
         .x_label_formatter(&fx)
         .y_label_formatter(&fy)
         .label_style(font(13.0))
@@ -249,6 +255,21 @@ fn draw_bar<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, base: f64) -> Res
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Ticks sit on cell centres (whole indices), never on the edges between cells, and
+    /// at most 12 show, evenly spaced from the first cell.
+    #[test]
+    fn ticks_sit_on_cell_centres() {
+        assert_eq!(cell_ticks(10), (0..10).map(f64::from).collect::<Vec<_>>());
+        assert_eq!(
+            cell_ticks(25),
+            vec![0.0, 3.0, 6.0, 9.0, 12.0, 15.0, 18.0, 21.0, 24.0]
+        );
+        assert_eq!(cell_ticks(1), vec![0.0]);
+        let labels: Vec<String> = (0..25).map(|i| format!("{i}")).collect();
+        assert_eq!(thin(&labels, 3.0), "3");
+        assert_eq!(thin(&labels, 2.5), "");
+    }
 
     #[test]
     fn ramp_runs_from_violet_to_yellow() {

@@ -12,10 +12,11 @@
 //! are encoded here with the `png` crate from plotters' RGB buffer. The same chart gives
 //! the same bytes every time (no clock, no randomness).
 //!
-//! Time axes: x values are seconds since 1970-01-01T00:00:00Z; ticks fall on whole hours
-//! counted from the local midnight before the first value and are labelled `HH:MM` (with
-//! the date when the span exceeds two days) in the chart's UTC offset, which the axis
-//! label should name (e.g. "time (UTC+02:00)").
+//! Time axes: x values are seconds since 1970-01-01T00:00:00Z; ticks fall a whole number
+//! of steps (1, 2, 3, 6 or 12 hours, or 1, 2, 7, 14, 28, ... days) from the local
+//! midnight of the first point, at most 16 of them, and are labelled `HH:MM` (with the
+//! date when the span exceeds two days, the date alone for steps of whole days) in the
+//! chart's UTC offset, which the axis label should name (e.g. "time (UTC+02:00)").
 //!
 //! # Units
 //! Sizes in pixels; x and y values in the units their axis labels name; times in
@@ -25,6 +26,7 @@ use std::sync::OnceLock;
 
 use chrono::{DateTime, FixedOffset, Offset, Utc};
 use plotters::chart::DualCoordChartContext;
+use plotters::coord::ranged1d::{DefaultFormatting, KeyPointHint};
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -258,6 +260,16 @@ fn x_extent(c: &LineChart) -> Option<(f64, f64)> {
     fold_extent(xs)
 }
 
+/// The smallest x of the series' finite points (bands left out).
+fn first_point_x(c: &LineChart) -> Option<f64> {
+    c.series
+        .iter()
+        .flat_map(|s| s.points.iter())
+        .filter(|p| p.0.is_finite() && p.1.is_finite())
+        .map(|p| p.0)
+        .reduce(f64::min)
+}
+
 fn fold_extent(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
     values.fold(None, |acc, v| match acc {
         None => Some((v, v)),
@@ -325,7 +337,10 @@ impl XMap {
         }
     }
 
-    fn label(self, v: f64, span: f64) -> String {
+    /// The label of tick `v` for ticks `step_h` hours apart (time axes): the date alone
+    /// for whole-day steps, with the clock time when the span exceeds two days, the
+    /// clock time alone otherwise.
+    fn label(self, v: f64, step_h: f64, span: f64) -> String {
         let XKind::Time { utc_offset_s } = self.kind else {
             return format_number(v);
         };
@@ -334,13 +349,50 @@ impl XMap {
         let t = DateTime::from_timestamp(secs, 0)
             .unwrap_or_default()
             .with_timezone(&off);
-        if span > 48.0 {
+        if step_h >= 24.0 {
+            t.format("%m-%d").to_string()
+        } else if span > 48.0 {
             t.format("%m-%d %H:%M").to_string()
         } else {
             t.format("%H:%M").to_string()
         }
     }
+
+    /// The x ticks over the plotted range `px0..px1` and their spacing in hours (0 for
+    /// numeric axes). Numeric axes: plotters' own choice for about 13 ticks. Time axes:
+    /// at most [`MAX_TIME_TICKS`] ticks a whole number of steps from the local midnight
+    /// of `first` (the first data point's plotted x), the step the smallest of 1, 2, 3,
+    /// 6 and 12 hours and 1, 2, 7, 14, 28, 56, ... days that keeps to that count, so
+    /// that ticks fall on whole hours or local midnights, and on a date sweep's case
+    /// dates when the cases are a week or two apart.
+    fn ticks(self, px0: f64, px1: f64, first: f64) -> (Vec<f64>, f64) {
+        if let XKind::Numeric = self.kind {
+            let inner = RangedCoordf64::from(px0..px1);
+            return (inner.key_points(13), 0.0);
+        }
+        let span = px1 - px0;
+        let mut step = 0.0;
+        for s in [1.0, 2.0, 3.0, 6.0, 12.0, 24.0, 48.0] {
+            if span / s <= MAX_TIME_TICKS as f64 {
+                step = s;
+                break;
+            }
+        }
+        if step == 0.0 {
+            step = 168.0;
+            while span / step > MAX_TIME_TICKS as f64 {
+                step *= 2.0;
+            }
+        }
+        let anchor = (first / 24.0).floor() * 24.0;
+        let k0 = ((px0 - anchor) / step).ceil() as i64;
+        let k1 = ((px1 - anchor) / step).floor() as i64;
+        ((k0..=k1).map(|k| anchor + k as f64 * step).collect(), step)
+    }
 }
+
+/// The most ticks a time axis gets.
+const MAX_TIME_TICKS: usize = 16;
 
 fn format_number(v: f64) -> String {
     let s = format!("{v:.3}");
@@ -372,7 +424,50 @@ fn runs(points: &[(f64, f64)], map: XMap) -> Vec<Vec<(f64, f64)>> {
     out
 }
 
-type Plane2d = Cartesian2d<RangedCoordf64, RangedCoordf64>;
+type Plane2d = Cartesian2d<Ticked, RangedCoordf64>;
+
+/// An f64 axis with the ticks given ([`XMap::ticks`]) and light grid lines between them.
+/// (plotters' own key-point combinator keeps the f64 axis's format option, which has no
+/// formatter for a chart's mesh; this one formats by the label formatter given.)
+#[derive(Clone)]
+pub(crate) struct Ticked {
+    inner: RangedCoordf64,
+    bold: Vec<f64>,
+    light: Vec<f64>,
+}
+
+impl Ticked {
+    /// An axis over `px0..px1` with ticks at `bold`.
+    pub(crate) fn new(px0: f64, px1: f64, bold: Vec<f64>) -> Ticked {
+        let light = bold.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+        Ticked {
+            inner: (px0..px1).into(),
+            bold,
+            light,
+        }
+    }
+}
+
+impl Ranged for Ticked {
+    type FormatOption = DefaultFormatting;
+    type ValueType = f64;
+
+    fn map(&self, value: &f64, limit: (i32, i32)) -> i32 {
+        self.inner.map(value, limit)
+    }
+
+    fn key_points<H: KeyPointHint>(&self, hint: H) -> Vec<f64> {
+        if hint.weight().allow_light_points() {
+            self.light.clone()
+        } else {
+            self.bold.clone()
+        }
+    }
+
+    fn range(&self) -> std::ops::Range<f64> {
+        self.inner.range()
+    }
+}
 type Dual<'a, DB> = DualCoordChartContext<'a, DB, Plane2d, Plane2d>;
 
 fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Result<(), PlotError> {
@@ -385,6 +480,9 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Res
     let (yr0, yr1) = y_range(c, c.y_right.as_ref(), Side::Right);
     let base = (c.size_px.1 as f64 / 700.0).clamp(0.6, 3.0);
     let font = |pt: f64| (FAMILY, pt * base);
+    let first = first_point_x(c).map_or(px0, |x| map.to_plot(x));
+    let (ticks, step_h) = map.ticks(px0, px1, first);
+    let x_axis = Ticked::new(px0, px1, ticks);
     let mut chart = ChartBuilder::on(root)
         .caption(&c.title, (FAMILY, 24.0 * base, FontStyle::Bold))
         .margin((14.0 * base) as u32)
@@ -395,12 +493,12 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Res
         } else {
             0
         })
-        .build_cartesian_2d(px0..px1, yl0..yl1)
+        .build_cartesian_2d(x_axis.clone(), yl0..yl1)
         .map_err(draw_err)?
-        .set_secondary_coord(px0..px1, yr0..yr1);
+        .set_secondary_coord(x_axis, yr0..yr1);
     draw_bands(&mut chart, c, map, (yl0, yl1))?;
     let span = px1 - px0;
-    let fmt = move |v: &f64| map.label(*v, span);
+    let fmt = move |v: &f64| map.label(*v, step_h, span);
     chart
         .configure_mesh()
         .x_desc(c.x_label.as_str())
@@ -411,7 +509,6 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &LineChart) -> Res
         .axis_desc_style(font(16.0))
         .light_line_style(RGBColor(236, 236, 236))
         .bold_line_style(RGBColor(210, 210, 210))
-        .x_labels(13)
         .max_light_lines(2)
         .draw()
         .map_err(draw_err)?;
@@ -564,6 +661,68 @@ fn draw_lines<DB: DrawingBackend>(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Seconds since the epoch of a UTC date and hour.
+    fn utc(date: &str, hour: u32) -> f64 {
+        chrono::NaiveDate::parse_from_str(date, "%Y-%m-%d")
+            .unwrap()
+            .and_hms_opt(hour, 0, 0)
+            .unwrap()
+            .and_utc()
+            .timestamp() as f64
+    }
+
+    /// The tick labels of a time axis over `x0..x1` with its first point at `first`.
+    fn time_labels(offset_s: i32, x0: f64, x1: f64, first: f64) -> Vec<String> {
+        let map = XMap::new(
+            XKind::Time {
+                utc_offset_s: offset_s,
+            },
+            x0,
+        );
+        let (px0, px1) = (map.to_plot(x0), map.to_plot(x1));
+        let (ticks, step) = map.ticks(px0, px1, map.to_plot(first));
+        ticks
+            .iter()
+            .map(|v| map.label(*v, step, px1 - px0))
+            .collect()
+    }
+
+    /// A date sweep two weeks apart gets its ticks on the case dates, labelled by date.
+    #[test]
+    fn date_sweep_ticks_fall_on_the_case_dates() {
+        let (a, b) = (utc("2027-03-01", 0), utc("2027-09-27", 0));
+        let got = time_labels(0, a - 7.0 * 86_400.0, b + 7.0 * 86_400.0, a);
+        let want: Vec<String> = (0..16)
+            .map(|k| {
+                (chrono::NaiveDate::from_ymd_opt(2027, 3, 1).unwrap()
+                    + chrono::Duration::days(14 * k))
+                .format("%m-%d")
+                .to_string()
+            })
+            .collect();
+        assert_eq!(got, want);
+    }
+
+    /// Five days of a season run: ticks every 12 h on local midnight and noon, in the
+    /// chart's offset; one day: every 2 h, clock time alone.
+    #[test]
+    fn time_ticks_fall_on_local_midnights_and_whole_hours() {
+        let start = utc("2027-12-22", 9);
+        let got = time_labels(3600, start, start + 5.0 * 86_400.0, start);
+        assert_eq!(got.first().map(String::as_str), Some("12-22 12:00"));
+        assert_eq!(got.get(1).map(String::as_str), Some("12-23 00:00"));
+        assert!(got.len() <= MAX_TIME_TICKS, "{got:?}");
+        let got = time_labels(
+            0,
+            utc("2027-06-21", 0),
+            utc("2027-06-22", 0),
+            utc("2027-06-21", 0),
+        );
+        assert_eq!(got.len(), 13);
+        assert_eq!(got[1], "02:00");
+        assert_eq!(got[12], "00:00");
+    }
 
     fn chart(points: Vec<(f64, f64)>) -> LineChart {
         LineChart {
