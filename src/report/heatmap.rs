@@ -187,12 +187,18 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, h: &Heatmap) -> Resul
     let cross = WHITE
         .mix(0.85)
         .stroke_width((1.5 * base).round().max(1.0) as u32);
+    // Square crosses whatever the cells' shape: half-arms of 0.22 of the shorter cell
+    // side, in each axis's cells.
+    let (pw, ph) = chart.plotting_area().dim_in_pixel();
+    let (cw, ch) = (f64::from(pw) / nx as f64, f64::from(ph) / ny as f64);
+    let arm = 0.22 * cw.min(ch);
+    let (dx, dy) = (arm / cw.max(1.0), arm / ch.max(1.0));
     for c in h.cells.iter().filter(|c| !c.feasible) {
-        let (x, y, d) = (c.col as f64, c.row as f64, 0.22);
+        let (x, y) = (c.col as f64, c.row as f64);
         chart
             .draw_series([
-                PathElement::new(vec![(x - d, y - d), (x + d, y + d)], cross),
-                PathElement::new(vec![(x - d, y + d), (x + d, y - d)], cross),
+                PathElement::new(vec![(x - dx, y - dy), (x + dx, y + dy)], cross),
+                PathElement::new(vec![(x - dx, y + dy), (x + dx, y - dy)], cross),
             ])
             .map_err(draw_err)?;
     }
@@ -233,6 +239,7 @@ fn draw_bar<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, base: f64) -> Res
         .disable_x_axis()
         .y_desc("min SOC (%)")
         .y_labels(6)
+        .y_label_formatter(&|v| format!("{v:.0}"))
         .label_style((FAMILY, 13.0 * base))
         .axis_desc_style((FAMILY, 14.0 * base))
         .draw()
