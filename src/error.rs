@@ -67,6 +67,18 @@ pub enum Error {
         /// Every problem, rendered.
         problems: Vec<String>,
     },
+    /// An input file's error, with the mission key that names the file and where.
+    #[error("{source}\n  (the file given as {key} {})", at_text(.mission.as_deref(), .at))]
+    Named {
+        /// The input's own error (it names the file, the problem and the fix).
+        source: Box<Error>,
+        /// The mission key, e.g. `terrain.file`.
+        key: &'static str,
+        /// Where the key's value is written.
+        at: Option<crate::vehicle::TextPos>,
+        /// The mission file, when the caller knows it ([`Error::in_mission`]).
+        mission: Option<PathBuf>,
+    },
     /// A command-line value is out of range or inconsistent.
     #[error("{0}")]
     Usage(String),
@@ -76,6 +88,35 @@ impl Error {
     /// Process exit code: 2 for bad input or unusable outputs.
     pub fn exit_code(&self) -> i32 {
         2
+    }
+
+    /// The error with the mission file `path` named where it names a mission key
+    /// ([`Error::Named`]); any other error unchanged.
+    pub fn in_mission(self, path: &std::path::Path) -> Error {
+        match self {
+            Error::Named {
+                source, key, at, ..
+            } => Error::Named {
+                source,
+                key,
+                at,
+                mission: Some(path.to_path_buf()),
+            },
+            other => other,
+        }
+    }
+}
+
+/// Where a mission key is written: "at FILE:LINE:COLUMN", or as much of it as is known.
+fn at_text(mission: Option<&std::path::Path>, at: &Option<crate::vehicle::TextPos>) -> String {
+    match (mission, at) {
+        (Some(f), Some(p)) => format!("at {}:{}:{}", f.display(), p.line, p.column),
+        (Some(f), None) => format!("in {}", f.display()),
+        (None, Some(p)) => format!(
+            "at line {}, column {} of the mission file",
+            p.line, p.column
+        ),
+        (None, None) => "in the mission file".into(),
     }
 }
 

@@ -759,6 +759,31 @@ fn mission_files_with_wrong_types_and_impossible_values_are_refused() {
     }
 }
 
+/// A mission whose terrain file is not a raster: `check`, `run` and `sweep` give the
+/// raster's own error and the mission key that names the file, at its line and column.
+#[test]
+fn a_bad_terrain_file_is_traced_to_its_mission_key() {
+    let s = Scratch::new();
+    mission(&s, "m.toml", "[terrain]", "[terrain]");
+    s.write("dem.asc", "not a grid at all\n");
+    let want = "dem.asc: not a readable ESRI ASCII grid: line 1: \"not\" = \"a\" is not a \
+                number. Fix: the header needs ncols, nrows, xllcorner (or xllcenter), \
+                yllcorner (or yllcenter), cellsize and optionally NODATA_value, then nrows \
+                lines of ncols numbers\n  (the file given as terrain.file at m.toml:5:8)";
+    check_refused(&s, &["check", "m.toml"], want);
+    check_refused(&s, &["run", "m.toml", "--out", "out"], want);
+    let sweep = [
+        "sweep",
+        "m.toml",
+        "--battery-wh",
+        "300:400:100",
+        "--out",
+        "sw",
+    ];
+    check_refused(&s, &sweep, want);
+    assert!(!s.path("out/summary.json").exists());
+}
+
 #[test]
 fn mission_limits_name_the_mission_key() {
     let s = Scratch::new();
@@ -768,7 +793,8 @@ fn mission_limits_name_the_mission_key() {
         &["run", "m.toml", "--out", "out"],
         "dem.asc: the raster is 30 x 30 = 900 cells, more than the limit of 100 cells. \
          Fix: crop or resample the raster, or raise the limit with --max-cells (in a \
-         mission file: max_cells under [terrain])",
+         mission file: max_cells under [terrain])\n  (the file given as terrain.file at \
+         m.toml:6:8)",
     );
     let s = Scratch::new();
     mission(&s, "m.toml", "[terrain]", "[terrain]\nmax_memory_mb = 0");

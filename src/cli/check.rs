@@ -10,7 +10,6 @@ use sunward::mission::resolve::{
     keep_out_off_grid, points_in_keep_out, points_off_dem, DrivingHours, Mission, Sky,
 };
 use sunward::mission::{check, prepare, Problem};
-use sunward::terrain::io::read_dem;
 use sunward::units::rad_to_deg;
 use sunward::Error;
 
@@ -36,10 +35,16 @@ pub fn run(a: CheckArgs) -> Result<(), Error> {
     };
     let mission = check(&text, &base, &exists).map_err(fail)?;
     super::check_series_memory(&a.mission, &mission)?;
-    let dem = read_dem(&mission.terrain.dem_path, &mission.terrain.read)?;
+    let dem = mission
+        .terrain
+        .read_dem()
+        .map_err(|e| e.in_mission(&a.mission))?;
     let mut off = points_off_dem(&mission.route, &dem);
     if let Some(mask_path) = &mission.terrain.keep_out_path {
-        let mask = read_dem(mask_path, &mission.terrain.read)?;
+        let mask = mission
+            .terrain
+            .read_keep_out(mask_path)
+            .map_err(|e| e.in_mission(&a.mission))?;
         let off_grid = keep_out_off_grid(&mission.terrain, &dem, &mask);
         if off_grid.is_none() {
             off.extend(points_in_keep_out(&mission.route, &dem, &mask));

@@ -304,7 +304,7 @@ fn run_staged(
     let inputs = mission_inputs(&a.mission, m);
     super::check_series_memory(&a.mission, m)?;
     let models = load_models(m)?;
-    let ground = Ground::load(m)?;
+    let ground = Ground::load(m).map_err(|e| e.in_mission(&a.mission))?;
     let cells = ground.dem.len() as u64;
     let need = sunward::limits::planner_bytes(cells)
         + sunward::limits::horizon_bytes(cells, horizon::DEFAULT_SECTORS as u64);

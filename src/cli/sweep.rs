@@ -204,7 +204,12 @@ fn plots(out: &Path, csv_text: &str, title: &str) -> Result<Vec<String>, Error> 
     Ok(names)
 }
 
-pub fn run_sweep(mut a: SweepArgs) -> Result<(), Error> {
+pub fn run_sweep(a: SweepArgs) -> Result<(), Error> {
+    let mission = a.mission.clone();
+    sweep_inner(a).map_err(|e| e.in_mission(&mission))
+}
+
+fn sweep_inner(mut a: SweepArgs) -> Result<(), Error> {
     let shorthands = [
         (a.battery_wh.take(), "battery.capacity_wh"),
         (a.duty.take(), sunward::study::vary::PAYLOAD_DUTY_KEY),
@@ -456,6 +461,11 @@ fn no_size_json(
 }
 
 pub fn run_size(a: SizeArgs) -> Result<(), Error> {
+    let mission = a.mission.clone();
+    size_inner(a).map_err(|e| e.in_mission(&mission))
+}
+
+fn size_inner(a: SizeArgs) -> Result<(), Error> {
     let m = load_mission(&a.mission)?;
     let base = a.mission.parent().unwrap_or(Path::new("")).to_path_buf();
     let silent = sunward::progress::Silent;

@@ -41,7 +41,7 @@ use crate::plan::{plan_route, Blocked, CellFlags, PlanError, Planner, Route, Rou
 use crate::sun::climate::{parse_weather_csv, WeatherCsvOptions, WeatherSeries};
 use crate::sun::position::{delta_t_model_s, sun_position, Observer};
 use crate::terrain::horizon::HorizonMap;
-use crate::terrain::{io::read_dem, Dem};
+use crate::terrain::Dem;
 use crate::vehicle::plan_model::RoverStepModel;
 
 /// The terrain and the cells closed before any vehicle limit (no-data, keep-out).
@@ -56,10 +56,10 @@ pub struct Ground {
 impl Ground {
     /// Reads the mission's terrain and its keep-out raster (cells with data are closed).
     pub fn load(m: &Mission) -> Result<Ground, Error> {
-        let dem = read_dem(&m.terrain.dem_path, &m.terrain.read)?;
+        let dem = m.terrain.read_dem()?;
         let mut flags = CellFlags::from_dem(&dem);
         if let Some(path) = &m.terrain.keep_out_path {
-            let mask = read_dem(path, &m.terrain.read)?;
+            let mask = m.terrain.read_keep_out(path)?;
             if (mask.width(), mask.height()) != (dem.width(), dem.height()) {
                 return Err(Error::Usage(format!(
                     "{}: the keep-out raster is {} x {} cells, the terrain {} x {}. Fix: \

@@ -70,6 +70,30 @@ pub struct TerrainInput {
     pub keep_out_path: Option<PathBuf>,
     /// Where `keep_out` is written in the file.
     pub keep_out_at: Option<TextPos>,
+    /// Where `file` is written in the file.
+    pub dem_at: Option<TextPos>,
+}
+
+impl TerrainInput {
+    /// Reads the DEM; an error names `terrain.file` and where it is written.
+    pub fn read_dem(&self) -> Result<crate::terrain::Dem, crate::Error> {
+        crate::terrain::io::read_dem(&self.dem_path, &self.read).map_err(|e| crate::Error::Named {
+            source: Box::new(e.into()),
+            key: "terrain.file",
+            at: self.dem_at,
+            mission: None,
+        })
+    }
+
+    /// Reads the keep-out raster at `path`; an error names `terrain.keep_out`.
+    pub fn read_keep_out(&self, path: &Path) -> Result<crate::terrain::Dem, crate::Error> {
+        crate::terrain::io::read_dem(path, &self.read).map_err(|e| crate::Error::Named {
+            source: Box::new(e.into()),
+            key: "terrain.keep_out",
+            at: self.keep_out_at,
+            mission: None,
+        })
+    }
 }
 
 /// A point of the route with its place in the mission text.
@@ -555,8 +579,10 @@ fn terrain(
         png: png?,
     };
     let keep_out_at = out.at(t.keep_out.as_ref().map(|k| k.span()));
+    let dem_at = out.at(t.file.as_ref().map(|k| k.span()));
     Some(TerrainInput {
         keep_out_at,
+        dem_at,
         dem_path: dem_path?,
         read,
         keep_out_path: keep_out_path.map_or(Some(None), |p| p.map(Some))?,
