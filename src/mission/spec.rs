@@ -665,16 +665,13 @@ impl<'a, 'i> Reader<'a, 'i> {
     /// A map point `[x, y]` in metres.
     pub fn point(&mut self, key: &'static str, out: &mut Problems<'_>) -> Option<Val<[f64; 2]>> {
         let v = self.get(key)?;
-        match <XY as serde::Deserialize>::deserialize(ValueDeserializer::from(v.clone())) {
-            Ok(xy) => self.finite_point(key, Spanned::new(v.span(), xy.0), out),
-            Err(_) => {
+        match point_of(v) {
+            Ok(xy) => self.finite_point(key, Spanned::new(v.span(), xy), out),
+            Err(detail) => {
                 out.add(
                     &self.full(key),
                     Some(v.span()),
-                    format!(
-                        "expected a point [x, y] of two numbers, got {}",
-                        point_error(v)
-                    ),
+                    detail,
                     format!(
                         "write it as a point [x, y] of two numbers, e.g. `{key} = [100.0, 250.0]`"
                     ),
@@ -900,19 +897,16 @@ fn read_waypoints(t: &mut Reader<'_, '_>, out: &mut Problems<'_>) -> Vec<Val<[f6
     let mut good = Vec::new();
     for (i, p) in points.iter().enumerate() {
         let key = format!("waypoints_m[{i}]");
-        match <XY as serde::Deserialize>::deserialize(ValueDeserializer::from(p.clone())) {
+        match point_of(p) {
             Ok(xy) => {
-                if let Some(v) = t.finite_point(&key, Spanned::new(p.span(), xy.0), out) {
+                if let Some(v) = t.finite_point(&key, Spanned::new(p.span(), xy), out) {
                     good.push(v);
                 }
             }
-            Err(_) => out.add(
+            Err(detail) => out.add(
                 &t.full(&key),
                 Some(p.span()),
-                format!(
-                    "expected a point [x, y] of two numbers, got {}",
-                    point_error(p)
-                ),
+                detail,
                 format!(
                     "write waypoint {} as [x, y] in the terrain's map coordinates, metres, \
                      e.g. `waypoints_m = {EXAMPLE}`",
@@ -929,16 +923,20 @@ fn is_number(v: &TomlValue<'_>) -> bool {
     matches!(v.get_ref(), DeValue::Integer(_) | DeValue::Float(_))
 }
 
-/// What is wrong with `p`, which is not a point of two numbers: its type, or for a pair,
+/// The point `[x, y]` that `p` holds, or what is wrong with it: its type, or for a pair,
 /// which coordinate is not a number.
-fn point_error(p: &TomlValue<'_>) -> std::borrow::Cow<'static, str> {
-    if let DeValue::Array(xy) = p.get_ref() {
-        if let (2, Some((i, v))) = (xy.len(), xy.iter().enumerate().find(|(_, v)| !is_number(v))) {
-            let axis = if i == 0 { "x" } else { "y" };
-            return format!("{} as {axis}", type_name(v.get_ref())).into();
-        }
+fn point_of(p: &TomlValue<'_>) -> Result<[f64; 2], String> {
+    if let Ok(xy) = <XY as serde::Deserialize>::deserialize(ValueDeserializer::from(p.clone())) {
+        return Ok(xy.0);
     }
-    type_name(p.get_ref())
+    let got = match p.get_ref() {
+        DeValue::Array(xy) if xy.len() == 2 => match xy.iter().position(|v| !is_number(v)) {
+            Some(i) => format!("{} as {}", type_name(xy[i].get_ref()), ["x", "y"][i]),
+            None => type_name(p.get_ref()).into(),
+        },
+        other => type_name(other).into(),
+    };
+    Err(format!("expected a point [x, y] of two numbers, got {got}"))
 }
 
 /// A point `[x, y]` of exactly two numbers. serde reads `[f64; 2]` from the first two
