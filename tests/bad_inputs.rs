@@ -766,10 +766,10 @@ fn a_bad_terrain_file_is_traced_to_its_mission_key() {
     let s = Scratch::new();
     mission(&s, "m.toml", "[terrain]", "[terrain]");
     s.write("dem.asc", "not a grid at all\n");
-    let want = "dem.asc: not a readable ESRI ASCII grid: line 1: \"not\" = \"a\" is not a \
-                number. Fix: the header needs ncols, nrows, xllcorner (or xllcenter), \
-                yllcorner (or yllcenter), cellsize and optionally NODATA_value, then nrows \
-                lines of ncols numbers\n  (the file given as terrain.file at m.toml:5:8)";
+    let want = "dem.asc: not a readable ESRI ASCII grid: line 1: unknown header key \"not\". \
+                Fix: the header needs ncols, nrows, xllcorner (or xllcenter), yllcorner (or \
+                yllcenter), cellsize and optionally NODATA_value, then nrows lines of ncols \
+                numbers\n  (the file given as terrain.file at m.toml:5:8)";
     check_refused(&s, &["check", "m.toml"], want);
     check_refused(&s, &["run", "m.toml", "--out", "out"], want);
     let sweep = [

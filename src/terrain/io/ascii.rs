@@ -82,6 +82,22 @@ pub fn parse(
         if key.parse::<f64>().is_ok() || key.starts_with('-') {
             break;
         }
+        const KEYS: [&str; 10] = [
+            "ncols",
+            "nrows",
+            "xllcorner",
+            "xllcenter",
+            "yllcorner",
+            "yllcenter",
+            "cellsize",
+            "dx",
+            "dy",
+            "nodata_value",
+        ];
+        if !KEYS.contains(&key.to_ascii_lowercase().as_str()) {
+            // Named before its value is read: a file that is no grid at all gets this.
+            return Err(bad(path, i + 1, format!("unknown header key {key:?}")));
+        }
         let value = parts
             .next()
             .ok_or_else(|| bad(path, i + 1, format!("{key:?} has no value")))?;
