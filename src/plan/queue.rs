@@ -191,9 +191,6 @@ impl BucketQueue {
         }
     }
 
-    /// The fine bucket of key `k`: ⌊(k − k₀)·SUB/Δ⌋, its bucket that over SUB. Through
-    /// i64 (one instruction on x86-64, where f64 → u64 takes a dozen); a key a hair below
-    /// the origin truncates to 0.
     /// Pushes `e` into window bucket `idx` (in the window, beyond `cur`); an empty bucket
     /// without storage takes spare storage from the pool.
     #[inline(always)]
@@ -209,6 +206,9 @@ impl BucketQueue {
         self.occupied[slot / 64] |= 1 << (slot % 64);
     }
 
+    /// The fine bucket of key `k`: ⌊(k − k₀)·SUB/Δ⌋, its bucket that over SUB. Through
+    /// i64 (one instruction on x86-64, where f64 → u64 takes a dozen); a key a hair below
+    /// the origin truncates to 0.
     #[inline(always)]
     fn fine(&self, k: f64) -> u64 {
         (((k - self.origin) * self.inv_fine) as i64).max(0) as u64
