@@ -82,28 +82,15 @@ pub fn parse(
         if key.parse::<f64>().is_ok() || key.starts_with('-') {
             break;
         }
-        const KEYS: [&str; 10] = [
-            "ncols",
-            "nrows",
-            "xllcorner",
-            "xllcenter",
-            "yllcorner",
-            "yllcenter",
-            "cellsize",
-            "dx",
-            "dy",
-            "nodata_value",
-        ];
-        if !KEYS.contains(&key.to_ascii_lowercase().as_str()) {
-            // Named before its value is read: a file that is no grid at all gets this.
-            return Err(bad(path, i + 1, format!("unknown header key {key:?}")));
-        }
-        let value = parts
-            .next()
-            .ok_or_else(|| bad(path, i + 1, format!("{key:?} has no value")))?;
-        let num = value
-            .parse::<f64>()
-            .map_err(|_| bad(path, i + 1, format!("{key:?} = {value:?} is not a number")))?;
+        // The value is read by the arm of a known key, so that a file that is no grid at
+        // all is told of its unknown key, not that its second word is not a number.
+        let value = parts.next();
+        let num = || -> Result<f64, TerrainError> {
+            let v = value.ok_or_else(|| bad(path, i + 1, format!("{key:?} has no value")))?;
+            v.parse::<f64>()
+                .map_err(|_| bad(path, i + 1, format!("{key:?} = {v:?} is not a number")))
+        };
+        let value = value.unwrap_or_default();
         let count = |v: f64| -> Result<u64, TerrainError> {
             if v >= 1.0 && v.fract() == 0.0 && v < 1e12 {
                 Ok(v as u64)
@@ -131,16 +118,19 @@ pub fn parse(
             }
         };
         match key.to_ascii_lowercase().as_str() {
-            "ncols" => h.ncols = Some(count(num)?),
-            "nrows" => h.nrows = Some(count(num)?),
-            "xllcorner" => h.x = Some((coordinate(num)?, false)),
-            "xllcenter" => h.x = Some((coordinate(num)?, true)),
-            "yllcorner" => h.y = Some((coordinate(num)?, false)),
-            "yllcenter" => h.y = Some((coordinate(num)?, true)),
-            "cellsize" => (h.dx, h.dy) = (Some(num), Some(num)),
-            "dx" => h.dx = Some(num),
-            "dy" => h.dy = Some(num),
-            "nodata_value" => h.nodata = Some(num),
+            "ncols" => h.ncols = Some(count(num()?)?),
+            "nrows" => h.nrows = Some(count(num()?)?),
+            "xllcorner" => h.x = Some((coordinate(num()?)?, false)),
+            "xllcenter" => h.x = Some((coordinate(num()?)?, true)),
+            "yllcorner" => h.y = Some((coordinate(num()?)?, false)),
+            "yllcenter" => h.y = Some((coordinate(num()?)?, true)),
+            "cellsize" => {
+                let n = num()?;
+                (h.dx, h.dy) = (Some(n), Some(n));
+            }
+            "dx" => h.dx = Some(num()?),
+            "dy" => h.dy = Some(num()?),
+            "nodata_value" => h.nodata = Some(num()?),
             other => return Err(bad(path, i + 1, format!("unknown header key {other:?}"))),
         }
         lines.next();
