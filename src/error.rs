@@ -92,18 +92,11 @@ impl Error {
 
     /// The error with the mission file `path` named where it names a mission key
     /// ([`Error::Named`]); any other error unchanged.
-    pub fn in_mission(self, path: &std::path::Path) -> Error {
-        match self {
-            Error::Named {
-                source, key, at, ..
-            } => Error::Named {
-                source,
-                key,
-                at,
-                mission: Some(path.to_path_buf()),
-            },
-            other => other,
+    pub fn in_mission(mut self, path: &std::path::Path) -> Error {
+        if let Error::Named { mission, .. } = &mut self {
+            *mission = Some(path.to_path_buf());
         }
+        self
     }
 }
 

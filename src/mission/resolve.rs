@@ -77,20 +77,25 @@ pub struct TerrainInput {
 impl TerrainInput {
     /// Reads the DEM; an error names `terrain.file` and where it is written.
     pub fn read_dem(&self) -> Result<crate::terrain::Dem, crate::Error> {
-        crate::terrain::io::read_dem(&self.dem_path, &self.read).map_err(|e| crate::Error::Named {
-            source: Box::new(e.into()),
-            key: "terrain.file",
-            at: self.dem_at,
-            mission: None,
-        })
+        self.read_named(&self.dem_path, "terrain.file", self.dem_at)
     }
 
     /// Reads the keep-out raster at `path`; an error names `terrain.keep_out`.
     pub fn read_keep_out(&self, path: &Path) -> Result<crate::terrain::Dem, crate::Error> {
+        self.read_named(path, "terrain.keep_out", self.keep_out_at)
+    }
+
+    /// Reads the raster at `path`, given as `key` at `at` in the mission file.
+    fn read_named(
+        &self,
+        path: &Path,
+        key: &'static str,
+        at: Option<TextPos>,
+    ) -> Result<crate::terrain::Dem, crate::Error> {
         crate::terrain::io::read_dem(path, &self.read).map_err(|e| crate::Error::Named {
             source: Box::new(e.into()),
-            key: "terrain.keep_out",
-            at: self.keep_out_at,
+            key,
+            at,
             mission: None,
         })
     }
