@@ -627,14 +627,10 @@ fn monthly_clearness_scales_generation() {
     );
 }
 
-/// A rover that must wait for charge where its panels cannot give it: in polar night at
-/// 80° N with driving hours all day, it starts below `min_soc_to_drive`, parks for the
-/// whole day with its 25 W hotel load on, and the verdict says that waiting lost charge.
-/// Hand arithmetic: 24 h × 25 W = 600 Wh drawn, nothing generated, so the pack loses
-/// 600 Wh plus its own I²R and coulombic losses.
-#[test]
-fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
-    use sunward::mission::verdict::summarize;
+/// A day from midnight at 80° N on 2 × 2 m flat cells, with driving hours all day: the
+/// rover starts at 50 % state of charge, below `min_soc_to_drive` (60 %), and must wait
+/// for 70 % before it drives its diagonal across the grid.
+fn wait_for_charge_on(date: &str) -> sunward::mission::sim::Run {
     let dem = flat(5);
     let rover = Rover::default();
     let route = route_on(&dem, &rover, (1.0, -1.0), (9.0, -9.0));
@@ -647,11 +643,22 @@ fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
         end: EndCondition::Arrival,
         ..parked_day()
     };
-    let run = simulate(
+    simulate(
         &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.5),
-        midnight("2031-12-21"),
+        midnight(date),
     )
-    .unwrap();
+    .unwrap()
+}
+
+/// A rover that must wait for charge where its panels cannot give it: in polar night at
+/// 80° N with driving hours all day, it starts below `min_soc_to_drive`, parks for the
+/// whole day with its 25 W hotel load on, and the verdict says that waiting lost charge.
+/// Hand arithmetic: 24 h × 25 W = 600 Wh drawn, nothing generated, so the pack loses
+/// 600 Wh plus its own I²R and coulombic losses.
+#[test]
+fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
+    use sunward::mission::verdict::summarize;
+    let run = wait_for_charge_on("2031-12-21");
     assert_eq!(run.ledger.generated_wh, 0.0);
     assert_eq!(run.distance_m, 0.0);
     assert!(
@@ -694,23 +701,7 @@ fn waiting_for_charge_in_the_dark_is_named_in_the_verdict() {
 #[test]
 fn waiting_for_charge_in_the_sun_recharges() {
     use sunward::mission::verdict::summarize;
-    let dem = flat(5);
-    let rover = Rover::default();
-    let route = route_on(&dem, &rover, (1.0, -1.0), (9.0, -9.0));
-    let s = stages(Vec::new());
-    let panel = ideal_panel(1.0);
-    let obs = Observer::new(80f64.to_radians(), 15f64.to_radians(), 0.0).unwrap();
-    let policy = Policy {
-        min_soc_to_drive: 0.6,
-        resume_soc: 0.7,
-        end: EndCondition::Arrival,
-        ..parked_day()
-    };
-    let run = simulate(
-        &setup(&route, &rover, &s, &panel, obs, 3.0, policy, 0.5),
-        midnight("2031-06-21"),
-    )
-    .unwrap();
+    let run = wait_for_charge_on("2031-06-21");
     assert!(run.charge_wait_s > 0.0);
     assert!(
         run.charge_wait_stored_wh > 0.0,
